@@ -1,0 +1,190 @@
+//! The `slicewise` command line: verbs that print JSON to stdout and one-line errors to stderr.
+
+use std::ffi::OsString;
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use clap::{Args, Parser, Subcommand};
+use serde_json::{json, Value};
+
+use crate::{load_scene_str, section, set_scene_field, FocusedBeam, Scene};
+
+/// The command line's verbs.
+#[derive(Parser, Debug)]
+#[command(
+    name = "slicewise",
+    version,
+    about = "Slicewise: what a thin ultrasound beam shows of a needle, nerves and vessels, and what it hides.",
+    after_help = "Slicewise is a rehearsal and teaching aid, not a guide for a real needle: \
+                  follow local protocols, supervision and licensed practice.",
+    disable_help_subcommand = true
+)]
+struct Cli {
+    #[command(subcommand)]
+    verb: Verb,
+}
+
+#[derive(Subcommand, Debug)]
+enum Verb {
+    /// Section a scene at its probe pose: needle signature, in-slab stretches, apparent and
+    /// true tip, hidden length, structure cuts and tip distances (JSON).
+    Section(SectionArgs),
+    /// Print the focused elevation profile: slab thickness T(v) against depth (JSON).
+    Beam(BeamArgs),
+    /// Validate a scene file and print it back in canonical form (every field explicit).
+    Check(SceneArgs),
+}
+
+#[derive(Args, Debug)]
+struct SceneArgs {
+    /// Scene file (*.scene.json).
+    scene: PathBuf,
+    /// Override a field before computing, e.g. --set probe.pose.tilt_deg=4.5 (repeatable; the
+    /// value is JSON).
+    #[arg(long = "set", value_name = "PATH=VALUE")]
+    set: Vec<String>,
+}
+
+#[derive(Args, Debug)]
+struct SectionArgs {
+    #[command(flatten)]
+    scene: SceneArgs,
+}
+
+#[derive(Args, Debug)]
+struct BeamArgs {
+    /// Transmit frequency, MHz (1 to 30).
+    #[arg(long, allow_negative_numbers = true)]
+    frequency_mhz: f64,
+    /// Elevation aperture (element height), mm (0.5 to 30).
+    #[arg(long, allow_negative_numbers = true)]
+    aperture_mm: f64,
+    /// Elevation focus, mm (1 to 300).
+    #[arg(long, allow_negative_numbers = true)]
+    focus_mm: f64,
+    /// Deepest row, mm (5 to 300).
+    #[arg(long, allow_negative_numbers = true)]
+    depth_mm: f64,
+    /// Row spacing, mm (0.1 to 50).
+    #[arg(long, default_value_t = 1.0, allow_negative_numbers = true)]
+    step_mm: f64,
+}
+
+/// Run the command line with `args` (program name first); returns the exit code.
+/// Errors are written to stderr as one line; nothing panics on bad input.
+pub fn run<I, T>(args: I) -> i32
+where
+    I: IntoIterator<Item = T>,
+    T: Into<OsString> + Clone,
+{
+    let cli = match Cli::try_parse_from(args) {
+        Ok(c) => c,
+        Err(e) => {
+            use clap::error::ErrorKind;
+            if matches!(e.kind(), ErrorKind::DisplayHelp | ErrorKind::DisplayVersion) {
+                let _ = e.print();
+                return 0;
+            }
+            // clap's message is several lines (usage, tip); keep the first, which says what.
+            let text = e.render().to_string();
+            let first = text
+                .lines()
+                .next()
+                .unwrap_or("bad arguments")
+                .trim_start_matches("error: ");
+            eprintln!("slicewise: {first} (see slicewise --help)");
+            return 2;
+        }
+    };
+    match execute(cli.verb) {
+        Ok(v) => {
+            let mut out = std::io::stdout().lock();
+            let text = serde_json::to_string_pretty(&v).unwrap_or_default();
+            if writeln!(out, "{text}").is_err() {
+                return 1;
+            }
+            0
+        }
+        Err(msg) => {
+            eprintln!("slicewise: {msg}");
+            1
+        }
+    }
+}
+
+fn execute(verb: Verb) -> Result<Value, String> {
+    match verb {
+        Verb::Section(a) => {
+            let scene = load_with_overrides(&a.scene)?;
+            serde_json::to_value(section(&scene)).map_err(|e| e.to_string())
+        }
+        Verb::Check(a) => {
+            let scene = load_with_overrides(&a)?;
+            Ok(crate::scene_to_value(&scene))
+        }
+        Verb::Beam(b) => beam_table(&b),
+    }
+}
+
+/// Read a scene file and apply `--set` overrides; errors name the file and the field.
+fn load_with_overrides(a: &SceneArgs) -> Result<Scene, String> {
+    let mut scene = read_scene_file(&a.scene)?;
+    for s in &a.set {
+        let (path, value) = s.split_once('=').ok_or_else(|| {
+            format!("--set {s}: expected PATH=VALUE, e.g. probe.pose.tilt_deg=4.5")
+        })?;
+        let value: Value = serde_json::from_str(value)
+            .or_else(|_| Ok::<_, String>(Value::String(value.to_owned())))?;
+        scene = set_scene_field(&scene, path.trim(), value).map_err(|e| format!("--set: {e}"))?;
+    }
+    Ok(scene)
+}
+
+/// Read and validate a scene file; the error names the file.
+pub fn read_scene_file(path: &Path) -> Result<Scene, String> {
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| format!("cannot read {}: {e}", path.display()))?;
+    load_scene_str(&text).map_err(|e| format!("{}: {e}", path.display()))
+}
+
+fn check_arg(name: &str, v: f64, lo: f64, hi: f64, unit: &str) -> Result<f64, String> {
+    if v.is_finite() && v >= lo && v <= hi {
+        Ok(v)
+    } else {
+        Err(format!(
+            "--{name}: must be a number from {lo} to {hi} {unit}, got {v}"
+        ))
+    }
+}
+
+fn beam_table(b: &BeamArgs) -> Result<Value, String> {
+    let f = check_arg("frequency-mhz", b.frequency_mhz, 1.0, 30.0, "MHz")?;
+    let h = check_arg("aperture-mm", b.aperture_mm, 0.5, 30.0, "mm")?;
+    let z = check_arg("focus-mm", b.focus_mm, 1.0, 300.0, "mm")?;
+    let d = check_arg("depth-mm", b.depth_mm, 5.0, 300.0, "mm")?;
+    let step = check_arg("step-mm", b.step_mm, 0.1, 50.0, "mm")?;
+    let beam = FocusedBeam::new(h, z, f);
+    let n = (d / step).floor() as usize;
+    let rows: Vec<Value> = (0..=n)
+        .map(|i| {
+            let v = (i as f64 * step).min(d);
+            json!({"depth_mm": round6(v), "thickness_mm": round6(beam.thickness_mm(v))})
+        })
+        .collect();
+    Ok(json!({
+        "model": "focused",
+        "width_definition": "two-way -6 dB full width",
+        "frequency_mhz": f,
+        "wavelength_mm": beam.wavelength_mm,
+        "aperture_mm": h,
+        "focus_mm": z,
+        "focus_thickness_mm": beam.focus_thickness_mm,
+        "waist_radius_mm": beam.waist_radius_mm,
+        "rayleigh_mm": beam.rayleigh_mm,
+        "rows": rows,
+    }))
+}
+
+fn round6(v: f64) -> f64 {
+    (v * 1e6).round() / 1e6
+}

@@ -1,0 +1,41 @@
+//! Scene data: probe, elevation profile, needle, structures and tissue. Data and poses only;
+//! every computation on them lives in `query/`, `plan/` and `echo/`.
+
+mod beam;
+mod needle;
+mod probe;
+mod structure;
+mod tissue;
+
+pub use beam::{
+    gaussian_radius_mm, wavelength_mm, ElevationProfile, FocusedBeam, SlabProfile,
+    GAUSSIAN_FWHM_PER_RADIUS, SPEED_OF_SOUND_M_S, TWO_WAY_6DB_FOCUS_FACTOR,
+};
+pub use needle::{gauge_outer_diameter_mm, Entry, Needle, NeedleSize, GAUGE_TABLE};
+pub use probe::{Footprint, ImageCoords, Pose, Probe, ProbeFrame};
+pub use structure::{Ellipsoid, Shape, Structure, StructureKind, Tube};
+pub use tissue::{LayerKind, TissueLayer, TissueLayers};
+
+/// One complete scene: what a scene file holds.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Scene {
+    /// Short human title, may be empty.
+    pub title: String,
+    /// Free notes for the facilitator, may be empty.
+    pub notes: String,
+    /// The probe, its beam and its pose.
+    pub probe: Probe,
+    /// The needle and how far it is inserted.
+    pub needle: Needle,
+    /// Tissue layers under the skin (top to bottom); the last continues downward.
+    pub tissue: TissueLayers,
+    /// Nerves, vessels, bone and fluid pockets.
+    pub structures: Vec<Structure>,
+}
+
+impl Scene {
+    /// The probe's image frame at its current pose.
+    pub fn frame(&self) -> ProbeFrame {
+        ProbeFrame::from_pose(&self.probe.pose)
+    }
+}

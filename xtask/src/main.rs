@@ -1,0 +1,5 @@
+//! Project chores: `cargo xtask build | serve | dist | test | bench`.
+
+fn main() {
+    eprintln!("xtask: not yet");
+}
