@@ -33,6 +33,27 @@ enum Verb {
     Beam(BeamArgs),
     /// Validate a scene file and print it back in canonical form (every field explicit).
     Check(SceneArgs),
+    /// Render the simulated screen (grey scale and colour Doppler) to a PNG; print its meta
+    /// (pixel spacing, origin, display settings, Doppler legend, frame rates) as JSON.
+    Render(RenderArgs),
+}
+
+#[derive(Args, Debug)]
+struct RenderArgs {
+    #[command(flatten)]
+    scene: SceneArgs,
+    /// Where to write the PNG (the screen only: no overlay, no text).
+    #[arg(long, value_name = "FILE.png")]
+    out: PathBuf,
+    /// Screen width, pixels (16 to 4096).
+    #[arg(long, default_value_t = 512)]
+    width: u32,
+    /// Screen height, pixels (16 to 4096); default: square pixels for the field of view.
+    #[arg(long)]
+    height: Option<u32>,
+    /// Also write the meta JSON to this file.
+    #[arg(long, value_name = "FILE.json")]
+    meta: Option<PathBuf>,
 }
 
 #[derive(Args, Debug)]
@@ -123,7 +144,60 @@ fn execute(verb: Verb) -> Result<Value, String> {
             Ok(crate::scene_to_value(&scene))
         }
         Verb::Beam(b) => beam_table(&b),
+        Verb::Render(r) => render_png(&r),
     }
+}
+
+/// Height giving square pixels for the scene's field of view at `width`, clamped to 16..=4096.
+fn square_pixel_height(scene: &Scene, width: u32) -> u32 {
+    let (span_u, span_v) = match scene.probe.footprint {
+        crate::Footprint::Linear { width_mm } => (width_mm, scene.probe.depth_mm),
+        crate::Footprint::Curved {
+            width_mm,
+            radius_mm,
+        } => {
+            let half = (width_mm / (2.0 * radius_mm)).min(75f64.to_radians());
+            let d = scene.probe.depth_mm;
+            (
+                2.0 * (radius_mm + d) * half.sin(),
+                d - (radius_mm * half.cos() - radius_mm),
+            )
+        }
+    };
+    ((width as f64 * span_v / span_u).round() as u32)
+        .clamp(crate::MIN_SCREEN_PX, crate::MAX_SCREEN_PX)
+}
+
+fn render_png(a: &RenderArgs) -> Result<Value, String> {
+    let scene = load_with_overrides(&a.scene)?;
+    let height = a
+        .height
+        .unwrap_or_else(|| square_pixel_height(&scene, a.width.clamp(1, crate::MAX_SCREEN_PX)));
+    let mut renderer = crate::Renderer::new();
+    let frame = renderer.render(&scene, a.width, height).map_err(|e| {
+        let flag = if e.field == "width" {
+            "--width"
+        } else {
+            "--height"
+        };
+        format!("{flag}: {}", e.message)
+    })?;
+    let file = std::fs::File::create(&a.out)
+        .map_err(|e| format!("cannot write {}: {e}", a.out.display()))?;
+    let mut encoder =
+        png::Encoder::new(std::io::BufWriter::new(file), frame.width(), frame.height());
+    encoder.set_color(png::ColorType::Rgba);
+    encoder.set_depth(png::BitDepth::Eight);
+    let write_err = |e: png::EncodingError| format!("cannot write {}: {e}", a.out.display());
+    let mut writer = encoder.write_header().map_err(write_err)?;
+    writer.write_image_data(frame.rgba()).map_err(write_err)?;
+    writer.finish().map_err(write_err)?;
+    let meta = serde_json::to_value(frame.meta()).map_err(|e| e.to_string())?;
+    if let Some(path) = &a.meta {
+        let text = serde_json::to_string_pretty(&meta).unwrap_or_default() + "\n";
+        std::fs::write(path, text).map_err(|e| format!("cannot write {}: {e}", path.display()))?;
+    }
+    Ok(meta)
 }
 
 /// Read a scene file and apply `--set` overrides; errors name the file and the field.

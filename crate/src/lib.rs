@@ -37,16 +37,22 @@
 //! `scene` (data), `query` (slab sections and signature), `scenefile` (v1 JSON: load, validate,
 //! save, edit by path), `cli` (the `slicewise` command), `wasm` (the browser boundary).
 
+mod echo;
+mod plan;
 mod query;
 mod scene;
 mod scenefile;
 
 #[cfg(not(target_arch = "wasm32"))]
 pub mod cli;
+#[cfg(target_arch = "wasm32")]
+pub mod wasm;
 
+pub use echo::*;
+pub use plan::*;
 pub use query::*;
 pub use scene::*;
 pub use scenefile::{
     field_limits, load_scene_str, load_scene_value, save_scene_string, scene_to_value,
-    set_scene_field, SceneError, FORMAT, VERSION,
+    set_scene_field, set_scene_number, SceneError, FORMAT, VERSION,
 };

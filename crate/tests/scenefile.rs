@@ -192,7 +192,7 @@ fn bad_files_get_clear_errors_naming_the_field() {
         ("wrong format", with("format", json!("other-tool")), "format: must be \"slicewise-scene\", got \"other-tool\""),
         ("newer version", with("version", json!(2)), "version: this build reads version 1 files; got version 2 (written by a newer Slicewise?)"),
         ("version as text", with("version", json!("1")), "version: must be the whole number 1, got \"1\""),
-        ("unknown top-level field", with("colour", json!("blue")), "colour: unknown field; allowed here: format, version, title, notes, probe, needle, tissue, structures"),
+        ("unknown top-level field", with("colour", json!("blue")), "colour: unknown field; allowed here: format, version, title, notes, probe, needle, tissue, structures, display"),
         ("typo in pose", with("probe.pose.tilt", json!(3)), "probe.pose.tilt: unknown field; allowed here: x_mm, y_mm, rotate_deg, tilt_deg, rock_deg"),
         ("missing probe", with("probe", Value::Null), "probe: missing; an object with footprint, frequency_mhz, depth_mm, elevation, pose is required"),
         ("depth out of range", with("probe.depth_mm", json!(1000)), "probe.depth_mm: must be a number from 5 to 300 mm, got 1000"),
@@ -219,9 +219,22 @@ fn bad_files_get_clear_errors_naming_the_field() {
         ("flow on a nerve", with("structures[0].flow_cm_s", json!(10)), "structures[0].flow_cm_s: unknown field; allowed here: id, kind, path_mm, radius_mm, fascicles, root"),
         ("unknown structure kind", with("structures[0].kind", json!("tendon")), "structures[0].kind: must be one of \"nerve\", \"vessel\", \"bone\", \"fluid\", got \"tendon\""),
         ("empty layers", with("tissue.layers", json!([])), "tissue.layers: must hold 1 to 16 layers, got 0"),
-        ("unknown layer", with("tissue.layers[1].kind", json!("tendon")), "tissue.layers[1].kind: must be one of \"skin\", \"fat\", \"muscle\", \"fascia\", got \"tendon\""),
+        ("unknown layer", with("tissue.layers[1].kind", json!("tendon")), "tissue.layers[1].kind: must be one of \"skin\", \"fat\", \"muscle\", \"fascia\", \"lung\", got \"tendon\""),
         ("root as text", with("structures[0].root", json!("yes")), "structures[0].root: must be true or false, got \"yes\""),
         ("huge coordinate", with("structures[0].path_mm", json!([[0, 0, 10], [0, 1e300, 10]])), "structures[0].path_mm[1][1]: must be a number from -500 to 500 mm, got 1e300"),
+        ("display as a list", with("display", json!([1])), "display: must be an object {...}, got a list"),
+        ("unknown display field", with("display", json!({"contrast": 3})), "display.contrast: unknown field; allowed here: gain_db, tgc_db, dynamic_range_db, grey_levels, doppler"),
+        ("gain too high", with("display", json!({"gain_db": 55})), "display.gain_db: must be a number from -40 to 40 dB, got 55"),
+        ("gain as text", with("display", json!({"gain_db": "loud"})), "display.gain_db: must be a number from -40 to 40 dB, got \"loud\""),
+        ("too few tgc bands", with("display", json!({"tgc_db": [0, 0, 0]})), "display.tgc_db: must hold 4 to 16 values (dB, one per depth band from the face down), got 3"),
+        ("tgc band out of range", with("display", json!({"tgc_db": [0, 0, 45, 0]})), "display.tgc_db[2]: must be a number from -30 to 30 dB, got 45"),
+        ("tgc as a number", with("display", json!({"tgc_db": 3})), "display.tgc_db: must be a list of 4 to 16 numbers in dB, got a number"),
+        ("dynamic range too small", with("display", json!({"dynamic_range_db": 10})), "display.dynamic_range_db: must be a number from 20 to 100 dB, got 10"),
+        ("one grey level", with("display", json!({"grey_levels": 1})), "display.grey_levels: must be a whole number from 2 to 256, got 1"),
+        ("fractional grey levels", with("display", json!({"grey_levels": 2.5})), "display.grey_levels: must be a whole number from 2 to 256, got 2.5"),
+        ("unknown doppler mode", with("display", json!({"doppler": {"mode": "spectral"}})), "display.doppler.mode: must be one of \"off\", \"velocity\", \"power\", got \"spectral\""),
+        ("doppler scale zero", with("display", json!({"doppler": {"mode": "velocity", "scale_cm_s": 0}})), "display.doppler.scale_cm_s: must be a number from 1 to 300 cm/s, got 0"),
+        ("unknown doppler field", with("display", json!({"doppler": {"prf_hz": 4000}})), "display.doppler.prf_hz: unknown field; allowed here: mode, scale_cm_s"),
     ];
     assert!(cases.len() >= 20);
     for (what, text, expected) in &cases {
@@ -230,6 +243,38 @@ fn bad_files_get_clear_errors_naming_the_field() {
             Err(e) => assert_eq!(&e.to_string(), expected, "{what}"),
         }
     }
+}
+
+/// The optional `display` object: absent means the documented defaults, every sub-field is
+/// optional, and a saved file keeps what was set.
+#[test]
+fn display_settings_default_and_round_trip() {
+    let plain = load_scene_str(&with("title", json!("t"))).unwrap();
+    assert_eq!(plain.display, DisplaySettings::default());
+    let partial = load_scene_str(&with(
+        "display",
+        json!({"gain_db": -6.5, "doppler": {"mode": "power"}}),
+    ))
+    .unwrap();
+    assert_eq!(partial.display.gain_db, -6.5);
+    assert_eq!(partial.display.doppler.mode, DopplerMode::Power);
+    assert_eq!(
+        partial.display.doppler.scale_cm_s,
+        DEFAULT_DOPPLER_SCALE_CM_S
+    );
+    assert_eq!(partial.display.tgc_db, vec![0.0; DEFAULT_TGC_BANDS]);
+    let full = load_scene_str(&with(
+        "display",
+        json!({"gain_db": 3, "tgc_db": [1, 2, 3, 4, 5], "dynamic_range_db": 45, "grey_levels": 3,
+               "doppler": {"mode": "velocity", "scale_cm_s": 12.5}}),
+    ))
+    .unwrap();
+    let back = load_scene_str(&save_scene_string(&full)).unwrap();
+    assert_eq!(full, back);
+    assert_eq!(back.display.grey_levels, 3);
+    assert_eq!(back.display.tgc_db, vec![1.0, 2.0, 3.0, 4.0, 5.0]);
+    let edited = set_scene_field(&full, "display.gain_db", json!(-12)).unwrap();
+    assert_eq!(edited.display.gain_db, -12.0);
 }
 
 /// Editing a field by path validates like loading and leaves the scene untouched on error.

@@ -1,7 +1,8 @@
-//! Scene data: probe, elevation profile, needle, structures and tissue. Data and poses only;
+//! Scene data: probe, elevation profile, needle, structures, tissue and display settings. Data and poses only;
 //! every computation on them lives in `query/`, `plan/` and `echo/`.
 
 mod beam;
+mod display;
 mod needle;
 mod probe;
 mod structure;
@@ -10,6 +11,10 @@ mod tissue;
 pub use beam::{
     gaussian_radius_mm, wavelength_mm, ElevationProfile, FocusedBeam, SlabProfile,
     GAUSSIAN_FWHM_PER_RADIUS, SPEED_OF_SOUND_M_S, TWO_WAY_6DB_FOCUS_FACTOR,
+};
+pub use display::{
+    DisplaySettings, DopplerMode, DopplerSettings, DEFAULT_DOPPLER_SCALE_CM_S,
+    DEFAULT_DYNAMIC_RANGE_DB, DEFAULT_TGC_BANDS,
 };
 pub use needle::{gauge_outer_diameter_mm, Entry, Needle, NeedleSize, GAUGE_TABLE};
 pub use probe::{Footprint, ImageCoords, Pose, Probe, ProbeFrame};
@@ -31,6 +36,8 @@ pub struct Scene {
     pub tissue: TissueLayers,
     /// Nerves, vessels, bone and fluid pockets.
     pub structures: Vec<Structure>,
+    /// Display settings of the simulated screen (all optional in the file).
+    pub display: DisplaySettings,
 }
 
 impl Scene {

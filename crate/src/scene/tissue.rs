@@ -11,15 +11,18 @@ pub enum LayerKind {
     Muscle,
     /// Dense connective tissue sheet.
     Fascia,
+    /// Aerated lung below the pleura: the layer above meets air, a near-total reflector.
+    Lung,
 }
 
 impl LayerKind {
     /// All kinds, in the order the file format lists them.
-    pub const ALL: [LayerKind; 4] = [
+    pub const ALL: [LayerKind; 5] = [
         LayerKind::Skin,
         LayerKind::Fat,
         LayerKind::Muscle,
         LayerKind::Fascia,
+        LayerKind::Lung,
     ];
 
     /// The word used in files.
@@ -29,6 +32,7 @@ impl LayerKind {
             LayerKind::Fat => "fat",
             LayerKind::Muscle => "muscle",
             LayerKind::Fascia => "fascia",
+            LayerKind::Lung => "lung",
         }
     }
 }

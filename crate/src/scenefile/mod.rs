@@ -6,11 +6,16 @@
 //! default. Optional fields and their defaults: `title`, `notes` (empty), `tissue` (1.5 mm
 //! skin, 5 mm fat, muscle), `structures` (none), `probe.pose` and each of its fields (0),
 //! `needle.bevel_roll_deg` (0), nerve `fascicles` (0 = from the radius) and `root` (false),
-//! vessel `flow_cm_s` (0), fluid `yaw_deg` (0). Saving writes every field explicitly.
+//! vessel `flow_cm_s` (0), fluid `yaw_deg` (0), `display` and each of its fields (gain 0 dB,
+//! eight 0 dB time-gain bands, 60 dB dynamic range, 256 grey levels, Doppler off with a
+//! 30 cm/s scale). Saving writes every field explicitly.
 
+mod edit;
 mod reader;
 mod strict_json;
 mod writer;
+
+pub use edit::set_scene_number;
 
 use serde_json::Value;
 use std::fmt;

@@ -42,7 +42,7 @@ impl Range {
             && v <= self.max
     }
 
-    fn describe(&self, unit: &str) -> String {
+    pub(crate) fn describe(&self, unit: &str) -> String {
         let lo = if self.min_open { "above" } else { "from" };
         let unit = if unit.is_empty() {
             String::new()
@@ -78,11 +78,12 @@ pub(crate) fn fmt_num(v: f64) -> String {
 }
 
 /// The unit named by a field's suffix, for messages.
-fn unit_of(key: &str) -> &'static str {
+pub(crate) fn unit_of(key: &str) -> &'static str {
     match key.rsplit('_').next() {
         Some("mm") => "mm",
         Some("deg") => "degrees",
         Some("mhz") => "MHz",
+        Some("db") => "dB",
         Some("s") if key.ends_with("cm_s") => "cm/s",
         _ => "",
     }
@@ -256,7 +257,7 @@ impl<'a> Obj<'a> {
     }
 }
 
-fn number(v: &Value, path: &str, range: Range, unit: &str) -> Result<f64, SceneError> {
+pub(crate) fn number(v: &Value, path: &str, range: Range, unit: &str) -> Result<f64, SceneError> {
     match v.as_f64() {
         Some(x) if range.contains(x) => Ok(x),
         Some(x) => Err(SceneError::at(
@@ -343,6 +344,10 @@ pub(crate) const LIMITS: &[(&str, Range)] = &[
     ("structures[].centre_mm[]", closed(-500.0, 500.0)),
     ("structures[].semi_axes_mm[]", closed(0.1, 100.0)),
     ("structures[].yaw_deg", closed(-360.0, 360.0)),
+    ("display.gain_db", closed(-40.0, 40.0)),
+    ("display.tgc_db[]", closed(-30.0, 30.0)),
+    ("display.dynamic_range_db", closed(20.0, 100.0)),
+    ("display.doppler.scale_cm_s", closed(1.0, 300.0)),
 ];
 
 pub(crate) fn limit(pattern: &str) -> Range {
@@ -364,6 +369,9 @@ pub(crate) const MAX_STRUCTURES: usize = 64;
 pub(crate) const MAX_PATH_POINTS: usize = 256;
 /// Most tissue layers.
 pub(crate) const MAX_LAYERS: usize = 16;
+/// Fewest and most time-gain bands.
+pub(crate) const TGC_BANDS_MIN: usize = 4;
+pub(crate) const TGC_BANDS_MAX: usize = 16;
 
 // ---- The scene ----
 
@@ -380,6 +388,7 @@ pub(crate) fn read_scene(v: &Value) -> Result<Scene, SceneError> {
             "needle",
             "tissue",
             "structures",
+            "display",
         ],
     )?;
     let format = top.req("format", "\"slicewise-scene\"")?;
@@ -392,14 +401,16 @@ pub(crate) fn read_scene(v: &Value) -> Result<Scene, SceneError> {
     let version = top.req("version", "the whole number 1")?;
     match version.as_f64() {
         Some(x) if x == super::VERSION as f64 => {}
-        Some(x) if x.fract() == 0.0 && x > super::VERSION as f64 => return Err(SceneError::at(
-            "version",
-            format!(
+        Some(x) if x.fract() == 0.0 && x > super::VERSION as f64 => {
+            return Err(SceneError::at(
+                "version",
+                format!(
                 "this build reads version {} files; got version {} (written by a newer Slicewise?)",
                 super::VERSION,
                 fmt_num(x)
             ),
-        )),
+            ))
+        }
         _ => {
             return Err(SceneError::at(
                 "version",
@@ -426,6 +437,10 @@ pub(crate) fn read_scene(v: &Value) -> Result<Scene, SceneError> {
         None => Vec::new(),
         Some(s) => read_structures(s)?,
     };
+    let display = match top.get("display") {
+        None => DisplaySettings::default(),
+        Some(d) => read_display(d)?,
+    };
     Ok(Scene {
         title,
         notes,
@@ -433,6 +448,88 @@ pub(crate) fn read_scene(v: &Value) -> Result<Scene, SceneError> {
         needle,
         tissue,
         structures,
+        display,
+    })
+}
+
+fn read_display(v: &Value) -> Result<DisplaySettings, SceneError> {
+    let o = Obj::open(
+        v,
+        "display",
+        &[
+            "gain_db",
+            "tgc_db",
+            "dynamic_range_db",
+            "grey_levels",
+            "doppler",
+        ],
+    )?;
+    let defaults = DisplaySettings::default();
+    let tgc_db = match o.get("tgc_db") {
+        None => defaults.tgc_db,
+        Some(Value::Array(items))
+            if (TGC_BANDS_MIN..=TGC_BANDS_MAX).contains(&items.len()) =>
+        {
+            let range = limit("display.tgc_db[]");
+            let mut out = Vec::with_capacity(items.len());
+            for (i, item) in items.iter().enumerate() {
+                out.push(number(item, &format!("display.tgc_db[{i}]"), range, "dB")?);
+            }
+            out
+        }
+        Some(Value::Array(items)) => {
+            return Err(SceneError::at(
+                "display.tgc_db",
+                format!(
+                    "must hold {TGC_BANDS_MIN} to {TGC_BANDS_MAX} values (dB, one per depth band from the face down), got {}",
+                    items.len()
+                ),
+            ))
+        }
+        Some(other) => {
+            return Err(SceneError::at(
+                "display.tgc_db",
+                format!(
+                    "must be a list of {TGC_BANDS_MIN} to {TGC_BANDS_MAX} numbers in dB, got {}",
+                    type_name(other)
+                ),
+            ))
+        }
+    };
+    let doppler = match o.get("doppler") {
+        None => defaults.doppler,
+        Some(dv) => {
+            let d = Obj::open(dv, "display.doppler", &["mode", "scale_cm_s"])?;
+            let names: Vec<&'static str> = DopplerMode::ALL.iter().map(|m| m.name()).collect();
+            let mode = if d.has("mode") {
+                let name = d.choice("mode", &names)?;
+                DopplerMode::ALL
+                    .into_iter()
+                    .find(|m| m.name() == name)
+                    .unwrap_or_default()
+            } else {
+                DopplerMode::Off
+            };
+            DopplerSettings {
+                mode,
+                scale_cm_s: d.num_or(
+                    "scale_cm_s",
+                    limit("display.doppler.scale_cm_s"),
+                    DEFAULT_DOPPLER_SCALE_CM_S,
+                )?,
+            }
+        }
+    };
+    Ok(DisplaySettings {
+        gain_db: o.num_or("gain_db", limit("display.gain_db"), defaults.gain_db)?,
+        tgc_db,
+        dynamic_range_db: o.num_or(
+            "dynamic_range_db",
+            limit("display.dynamic_range_db"),
+            defaults.dynamic_range_db,
+        )?,
+        grey_levels: o.int_or("grey_levels", 2, 256, 256)? as u32,
+        doppler,
     })
 }
 

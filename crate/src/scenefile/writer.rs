@@ -20,6 +20,7 @@ pub(crate) fn write_scene(s: &Scene) -> Value {
         "structures".into(),
         Value::Array(s.structures.iter().map(write_structure).collect()),
     );
+    top.insert("display".into(), write_display(&s.display));
     Value::Object(top)
 }
 
@@ -99,4 +100,14 @@ fn write_structure(s: &Structure) -> Value {
         StructureKind::Bone | StructureKind::Fluid => {}
     }
     Value::Object(m)
+}
+
+fn write_display(d: &DisplaySettings) -> Value {
+    json!({
+        "gain_db": d.gain_db,
+        "tgc_db": d.tgc_db,
+        "dynamic_range_db": d.dynamic_range_db,
+        "grey_levels": d.grey_levels,
+        "doppler": {"mode": d.doppler.mode.name(), "scale_cm_s": d.doppler.scale_cm_s},
+    })
 }

@@ -106,6 +106,7 @@ pub fn random_scene(r: &mut ChaCha8Rng, allow_curved: bool) -> Scene {
         needle,
         tissue: TissueLayers::default(),
         structures: Vec::new(),
+        display: DisplaySettings::default(),
     }
 }
 
