@@ -36,6 +36,29 @@ enum Verb {
     /// Render the simulated screen (grey scale and colour Doppler) to a PNG; print its meta
     /// (pixel spacing, origin, display settings, Doppler legend, frame rates) as JSON.
     Render(RenderArgs),
+    /// Solve for the probe tilt (and, separately, the slide along the elevation axis) that puts
+    /// the needle tip on the slab's centre plane, with the window in which the tip is in the slab
+    /// (absolute pose values; JSON).
+    Capture(SceneArgs),
+    /// Walking schedule for an advance in steps: the capture tilt and window at each step, the
+    /// re-tilts a user needs if they re-centre only when the tip leaves the slab, and the blind
+    /// advance if the probe never moves (JSON).
+    Walk(WalkArgs),
+}
+
+#[derive(Args, Debug)]
+struct WalkArgs {
+    #[command(flatten)]
+    scene: SceneArgs,
+    /// Inserted length at the start, mm (0 to the needle's length).
+    #[arg(long, allow_negative_numbers = true)]
+    from_mm: f64,
+    /// Inserted length at the end, mm (0 to the needle's length).
+    #[arg(long, allow_negative_numbers = true)]
+    to_mm: f64,
+    /// Advance per step, mm (0.01 to 50).
+    #[arg(long, allow_negative_numbers = true)]
+    step_mm: f64,
 }
 
 #[derive(Args, Debug)]
@@ -145,6 +168,15 @@ fn execute(verb: Verb) -> Result<Value, String> {
         }
         Verb::Beam(b) => beam_table(&b),
         Verb::Render(r) => render_png(&r),
+        Verb::Capture(a) => {
+            let scene = load_with_overrides(&a)?;
+            serde_json::to_value(crate::capture(&scene)).map_err(|e| e.to_string())
+        }
+        Verb::Walk(w) => {
+            let scene = load_with_overrides(&w.scene)?;
+            crate::check_walk(&scene, w.from_mm, w.to_mm, w.step_mm, |f| format!("--{}", f.replace('_', "-")))?;
+            serde_json::to_value(crate::walk(&scene, w.from_mm, w.to_mm, w.step_mm)).map_err(|e| e.to_string())
+        }
     }
 }
 
@@ -192,7 +224,8 @@ fn render_png(a: &RenderArgs) -> Result<Value, String> {
     let mut writer = encoder.write_header().map_err(write_err)?;
     writer.write_image_data(frame.rgba()).map_err(write_err)?;
     writer.finish().map_err(write_err)?;
-    let meta = serde_json::to_value(frame.meta()).map_err(|e| e.to_string())?;
+    let mut meta = serde_json::to_value(frame.meta()).map_err(|e| e.to_string())?;
+    meta["fingerprint_fnv1a64"] = json!(format!("{:016x}", frame.fingerprint()));
     if let Some(path) = &a.meta {
         let text = serde_json::to_string_pretty(&meta).unwrap_or_default() + "\n";
         std::fs::write(path, text).map_err(|e| format!("cannot write {}: {e}", path.display()))?;

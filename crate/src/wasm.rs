@@ -51,6 +51,68 @@ struct JsEvent {
     declared: Option<String>,
 }
 
+/// The wasm linear memory, so the page can view rendered pixels in place
+/// (`new Uint8ClampedArray(wasmMemory().buffer, echo.rgbaPtr(), echo.rgbaLen())`).
+#[wasm_bindgen(js_name = wasmMemory)]
+pub fn wasm_memory() -> JsValue {
+    wasm_bindgen::memory()
+}
+
+/// The simulated screen renderer; keeps its tables and buffers between frames. After
+/// `render`, the RGBA pixels (width × height × 4) sit at `rgbaPtr()` in `wasmMemory()` until
+/// the next call.
+#[wasm_bindgen]
+pub struct EchoView {
+    renderer: crate::Renderer,
+    ptr: usize,
+    len: usize,
+    fingerprint: u64,
+}
+
+impl Default for EchoView {
+    fn default() -> Self {
+        Self::new()
+    }
+}
+
+#[wasm_bindgen]
+impl EchoView {
+    /// A renderer with empty buffers.
+    #[wasm_bindgen(constructor)]
+    pub fn new() -> EchoView {
+        EchoView { renderer: crate::Renderer::new(), ptr: 0, len: 0, fingerprint: 0 }
+    }
+
+    /// Render the session's scene at `width` × `height` pixels (16 to 4096 each); returns the
+    /// frame's meta (mm per pixel, the centre of pixel (0, 0) in image mm, display settings,
+    /// Doppler legend, frame rates). Errors name `width` or `height`.
+    pub fn render(&mut self, session: &Session, width: u32, height: u32) -> Result<JsValue, JsError> {
+        let out = self.renderer.render(&session.scene, width, height).map_err(|e| JsError::new(&e.to_string()))?;
+        self.ptr = out.rgba().as_ptr() as usize;
+        self.len = out.rgba().len();
+        self.fingerprint = out.fingerprint();
+        to_js(out.meta())
+    }
+
+    /// Address of the last frame's RGBA bytes in `wasmMemory()`.
+    #[wasm_bindgen(js_name = rgbaPtr)]
+    pub fn rgba_ptr(&self) -> usize {
+        self.ptr
+    }
+
+    /// Length of the last frame's RGBA bytes.
+    #[wasm_bindgen(js_name = rgbaLen)]
+    pub fn rgba_len(&self) -> usize {
+        self.len
+    }
+
+    /// FNV-1a 64 of the last frame's RGBA bytes, 16 hex digits (equals the CLI's
+    /// `fingerprint_fnv1a64` for the same scene and size).
+    pub fn fingerprint(&self) -> String {
+        format!("{:016x}", self.fingerprint)
+    }
+}
+
 /// One scene being explored on the page.
 #[wasm_bindgen]
 pub struct Session {

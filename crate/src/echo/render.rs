@@ -199,6 +199,11 @@ impl RenderOutput {
     pub fn grey(&self) -> &[u8] {
         &self.grey
     }
+    /// FNV-1a 64-bit hash of the RGBA bytes (the native/wasm agreement check).
+    pub fn fingerprint(&self) -> u64 {
+        fnv1a64(self.rgba())
+    }
+
     /// Spacing, origin, display settings, Doppler legend and frame rates of this frame.
     pub fn meta(&self) -> &RenderMeta {
         // Always set by `Renderer::render` before the output is handed out.

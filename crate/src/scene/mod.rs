@@ -5,6 +5,7 @@ mod beam;
 mod display;
 mod needle;
 mod probe;
+mod rehearsal;
 mod structure;
 mod tissue;
 
@@ -17,6 +18,7 @@ pub use display::{
     DEFAULT_DYNAMIC_RANGE_DB, DEFAULT_TGC_BANDS,
 };
 pub use needle::{gauge_outer_diameter_mm, Entry, Needle, NeedleSize, GAUGE_TABLE};
+pub use rehearsal::{AdvanceMode, RehearsalSettings};
 pub use probe::{Footprint, ImageCoords, Pose, Probe, ProbeFrame};
 pub use structure::{Ellipsoid, Shape, Structure, StructureKind, Tube};
 pub use tissue::{LayerKind, TissueLayer, TissueLayers};
@@ -38,6 +40,8 @@ pub struct Scene {
     pub structures: Vec<Structure>,
     /// Display settings of the simulated screen (all optional in the file).
     pub display: DisplaySettings,
+    /// Settings of a tip-walking rehearsal on this scene (all optional in the file).
+    pub rehearsal: RehearsalSettings,
 }
 
 impl Scene {

@@ -34,6 +34,9 @@ pub fn set_scene_number(scene: &mut Scene, path: &str, value: f64) -> Result<(),
         "needle.bevel_roll_deg" => (&mut scene.needle.bevel_roll_deg, limit(path)),
         "needle.entry.x_mm" => (&mut scene.needle.entry.x_mm, limit(path)),
         "needle.entry.y_mm" => (&mut scene.needle.entry.y_mm, limit(path)),
+        "display.gain_db" => (&mut scene.display.gain_db, limit(path)),
+        "display.dynamic_range_db" => (&mut scene.display.dynamic_range_db, limit(path)),
+        "display.doppler.scale_cm_s" => (&mut scene.display.doppler.scale_cm_s, limit(path)),
         _ => {
             // serde_json cannot hold NaN or infinities; name the field rather than fail vaguely.
             if !value.is_finite() {

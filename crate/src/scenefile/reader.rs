@@ -85,6 +85,8 @@ pub(crate) fn unit_of(key: &str) -> &'static str {
         Some("mhz") => "MHz",
         Some("db") => "dB",
         Some("s") if key.ends_with("cm_s") => "cm/s",
+        Some("s") if key.ends_with("mm_s") => "mm/s",
+        Some("s") => "s",
         _ => "",
     }
 }
@@ -345,6 +347,10 @@ pub(crate) const LIMITS: &[(&str, Range)] = &[
     ("structures[].semi_axes_mm[]", closed(0.1, 100.0)),
     ("structures[].yaw_deg", closed(-360.0, 360.0)),
     ("display.gain_db", closed(-40.0, 40.0)),
+    ("rehearsal.pace_mm_s", closed(0.1, 20.0)),
+    ("rehearsal.step_mm", closed(0.1, 10.0)),
+    ("rehearsal.advance_mm", closed(0.5, 300.0)),
+    ("rehearsal.time_limit_s", closed(10.0, 3600.0)),
     ("display.tgc_db[]", closed(-30.0, 30.0)),
     ("display.dynamic_range_db", closed(20.0, 100.0)),
     ("display.doppler.scale_cm_s", closed(1.0, 300.0)),
@@ -389,6 +395,7 @@ pub(crate) fn read_scene(v: &Value) -> Result<Scene, SceneError> {
             "tissue",
             "structures",
             "display",
+            "rehearsal",
         ],
     )?;
     let format = top.req("format", "\"slicewise-scene\"")?;
@@ -441,6 +448,10 @@ pub(crate) fn read_scene(v: &Value) -> Result<Scene, SceneError> {
         None => DisplaySettings::default(),
         Some(d) => read_display(d)?,
     };
+    let rehearsal = match top.get("rehearsal") {
+        None => RehearsalSettings::default(),
+        Some(r) => read_rehearsal(r, &structures)?,
+    };
     Ok(Scene {
         title,
         notes,
@@ -449,6 +460,39 @@ pub(crate) fn read_scene(v: &Value) -> Result<Scene, SceneError> {
         tissue,
         structures,
         display,
+        rehearsal,
+    })
+}
+
+fn read_rehearsal(v: &Value, structures: &[Structure]) -> Result<RehearsalSettings, SceneError> {
+    let o = Obj::open(v, "rehearsal", &["advance", "pace_mm_s", "step_mm", "advance_mm", "target", "time_limit_s"])?;
+    let d = RehearsalSettings::default();
+    let advance = if o.has("advance") {
+        let names: Vec<&'static str> = AdvanceMode::ALL.iter().map(|m| m.name()).collect();
+        let name = o.choice("advance", &names)?;
+        AdvanceMode::ALL.into_iter().find(|m| m.name() == name).unwrap_or_default()
+    } else {
+        d.advance
+    };
+    let target = match o.get("target") {
+        None | Some(Value::Null) => None,
+        Some(Value::String(id)) => {
+            if !structures.iter().any(|s| &s.id == id) {
+                let ids: Vec<&str> = structures.iter().map(|s| s.id.as_str()).collect();
+                let known = if ids.is_empty() { "the scene has no structures".to_owned() } else { format!("ids here: {}", ids.join(", ")) };
+                return Err(SceneError::at("rehearsal.target", format!("no structure has the id \"{id}\"; {known}")));
+            }
+            Some(id.clone())
+        }
+        Some(other) => return Err(SceneError::at("rehearsal.target", format!("must be a structure id (text), got {}", shown(other)))),
+    };
+    Ok(RehearsalSettings {
+        advance,
+        pace_mm_s: o.num_or("pace_mm_s", limit("rehearsal.pace_mm_s"), d.pace_mm_s)?,
+        step_mm: o.num_or("step_mm", limit("rehearsal.step_mm"), d.step_mm)?,
+        advance_mm: o.num_or("advance_mm", limit("rehearsal.advance_mm"), d.advance_mm)?,
+        target,
+        time_limit_s: o.num_or("time_limit_s", limit("rehearsal.time_limit_s"), d.time_limit_s)?,
     })
 }
 

@@ -21,6 +21,17 @@ pub(crate) fn write_scene(s: &Scene) -> Value {
         Value::Array(s.structures.iter().map(write_structure).collect()),
     );
     top.insert("display".into(), write_display(&s.display));
+    let r = &s.rehearsal;
+    let mut rehearsal = Map::new();
+    rehearsal.insert("advance".into(), json!(r.advance.name()));
+    rehearsal.insert("pace_mm_s".into(), json!(r.pace_mm_s));
+    rehearsal.insert("step_mm".into(), json!(r.step_mm));
+    rehearsal.insert("advance_mm".into(), json!(r.advance_mm));
+    if let Some(t) = &r.target {
+        rehearsal.insert("target".into(), json!(t));
+    }
+    rehearsal.insert("time_limit_s".into(), json!(r.time_limit_s));
+    top.insert("rehearsal".into(), Value::Object(rehearsal));
     Value::Object(top)
 }
 

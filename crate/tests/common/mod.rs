@@ -107,6 +107,7 @@ pub fn random_scene(r: &mut ChaCha8Rng, allow_curved: bool) -> Scene {
         tissue: TissueLayers::default(),
         structures: Vec::new(),
         display: DisplaySettings::default(),
+        rehearsal: RehearsalSettings::default(),
     }
 }
 
