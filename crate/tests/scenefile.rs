@@ -192,7 +192,7 @@ fn bad_files_get_clear_errors_naming_the_field() {
         ("wrong format", with("format", json!("other-tool")), "format: must be \"slicewise-scene\", got \"other-tool\""),
         ("newer version", with("version", json!(2)), "version: this build reads version 1 files; got version 2 (written by a newer Slicewise?)"),
         ("version as text", with("version", json!("1")), "version: must be the whole number 1, got \"1\""),
-        ("unknown top-level field", with("colour", json!("blue")), "colour: unknown field; allowed here: format, version, title, notes, probe, needle, tissue, structures, display"),
+        ("unknown top-level field", with("colour", json!("blue")), "colour: unknown field; allowed here: format, version, title, notes, probe, needle, tissue, structures, display, rehearsal"),
         ("typo in pose", with("probe.pose.tilt", json!(3)), "probe.pose.tilt: unknown field; allowed here: x_mm, y_mm, rotate_deg, tilt_deg, rock_deg"),
         ("missing probe", with("probe", Value::Null), "probe: missing; an object with footprint, frequency_mhz, depth_mm, elevation, pose is required"),
         ("depth out of range", with("probe.depth_mm", json!(1000)), "probe.depth_mm: must be a number from 5 to 300 mm, got 1000"),
@@ -235,6 +235,12 @@ fn bad_files_get_clear_errors_naming_the_field() {
         ("unknown doppler mode", with("display", json!({"doppler": {"mode": "spectral"}})), "display.doppler.mode: must be one of \"off\", \"velocity\", \"power\", got \"spectral\""),
         ("doppler scale zero", with("display", json!({"doppler": {"mode": "velocity", "scale_cm_s": 0}})), "display.doppler.scale_cm_s: must be a number from 1 to 300 cm/s, got 0"),
         ("unknown doppler field", with("display", json!({"doppler": {"prf_hz": 4000}})), "display.doppler.prf_hz: unknown field; allowed here: mode, scale_cm_s"),
+        ("rehearsal target missing", with("rehearsal", json!({"target": "median"})), "rehearsal.target: no structure has the id \"median\"; ids here: forearm-nerve, companion-artery, companion-vein"),
+        ("rehearsal target as number", with("rehearsal", json!({"target": 3})), "rehearsal.target: must be a structure id (text), got 3"),
+        ("rehearsal pace too fast", with("rehearsal", json!({"pace_mm_s": 50})), "rehearsal.pace_mm_s: must be a number from 0.1 to 20 mm/s, got 50"),
+        ("rehearsal unknown advance", with("rehearsal", json!({"advance": "auto"})), "rehearsal.advance: must be one of \"keys\", \"steady\", got \"auto\""),
+        ("rehearsal time limit", with("rehearsal", json!({"time_limit_s": 5})), "rehearsal.time_limit_s: must be a number from 10 to 3600 s, got 5"),
+        ("rehearsal unknown field", with("rehearsal", json!({"score": 10})), "rehearsal.score: unknown field; allowed here: advance, pace_mm_s, step_mm, advance_mm, target, time_limit_s"),
     ];
     assert!(cases.len() >= 20);
     for (what, text, expected) in &cases {

@@ -3,7 +3,7 @@
 
 use std::process::Command;
 
-use crate::util::{cargo, exec, gzip_len, root};
+use crate::util::{cargo, exec, gzip_len, output, root};
 
 fn kb(n: usize) -> String {
     format!("{:.1} KB", n as f64 / 1024.0)
@@ -29,16 +29,18 @@ pub(crate) fn run(args: &[String]) -> Result<(), String> {
         })
         .unwrap_or_default();
     examples.sort();
+    let mut native_echo = String::new();
     for ex in &examples {
-        exec(cargo().args([
-            "run",
-            "--quiet",
-            "--release",
-            "--package",
-            "slicewise",
-            "--example",
-            ex,
-        ]))?;
+        exec(cargo().args(["build", "--quiet", "--release", "--package", "slicewise", "--example", ex]))?;
+        let out = output(cargo().args(["run", "--quiet", "--release", "--package", "slicewise", "--example", ex]))
+            .ok_or_else(|| format!("the {ex} benchmark failed"))?;
+        for line in out.lines() {
+            // A machine-readable line for the wasm/native ratio; the rest is for people.
+            match line.strip_prefix("NATIVE_ECHO_MS ") {
+                Some(json) => native_echo = json.trim().to_owned(),
+                None => println!("{line}"),
+            }
+        }
     }
 
     println!("\n== page in headless Chromium ==");
@@ -48,6 +50,7 @@ pub(crate) fn run(args: &[String]) -> Result<(), String> {
     for (k, v) in &env.vars {
         node.env(k, v);
     }
+    node.env("SLICEWISE_NATIVE_ECHO_MS", &native_echo);
     exec(&mut node)?;
 
     println!("\n== sizes (gzip -9) ==");
