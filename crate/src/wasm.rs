@@ -80,14 +80,27 @@ impl EchoView {
     /// A renderer with empty buffers.
     #[wasm_bindgen(constructor)]
     pub fn new() -> EchoView {
-        EchoView { renderer: crate::Renderer::new(), ptr: 0, len: 0, fingerprint: 0 }
+        EchoView {
+            renderer: crate::Renderer::new(),
+            ptr: 0,
+            len: 0,
+            fingerprint: 0,
+        }
     }
 
     /// Render the session's scene at `width` × `height` pixels (16 to 4096 each); returns the
     /// frame's meta (mm per pixel, the centre of pixel (0, 0) in image mm, display settings,
     /// Doppler legend, frame rates). Errors name `width` or `height`.
-    pub fn render(&mut self, session: &Session, width: u32, height: u32) -> Result<JsValue, JsError> {
-        let out = self.renderer.render(&session.scene, width, height).map_err(|e| JsError::new(&e.to_string()))?;
+    pub fn render(
+        &mut self,
+        session: &Session,
+        width: u32,
+        height: u32,
+    ) -> Result<JsValue, JsError> {
+        let out = self
+            .renderer
+            .render(&session.scene, width, height)
+            .map_err(|e| JsError::new(&e.to_string()))?;
         self.ptr = out.rgba().as_ptr() as usize;
         self.len = out.rgba().len();
         self.fingerprint = out.fingerprint();
@@ -334,10 +347,13 @@ impl Session {
     }
 
     /// The walking schedule for an advance from `from_mm` to `to_mm` in steps of `step_mm`
-    /// (the same JSON as `slicewise walk`).
+    /// (the same JSON as `slicewise walk`). Errors name the page's fields (`walk.from_mm`,
+    /// `walk.to_mm`, `walk.step_mm`) and the allowed range.
     pub fn walk(&self, from_mm: f64, to_mm: f64, step_mm: f64) -> Result<JsValue, JsError> {
-        crate::check_walk(&self.scene, from_mm, to_mm, step_mm, |f| f.to_owned())
-            .map_err(|e| JsError::new(&e))?;
+        crate::check_walk(&self.scene, from_mm, to_mm, step_mm, |f| {
+            format!("walk.{f}")
+        })
+        .map_err(|e| JsError::new(&e))?;
         to_js(&crate::walk(&self.scene, from_mm, to_mm, step_mm))
     }
 }

@@ -43,6 +43,19 @@ export const CONTROL_GROUPS = [
       { path: "probe.elevation.thickness_mm", label: "Thickness", unit: "mm", step: 0.05, big: 0.5, model: "uniform" },
     ],
   },
+  {
+    id: "display",
+    controls: [
+      { path: "display.gain_db", label: "Gain", unit: "dB", step: 1, big: 5 },
+      { path: "display.dynamic_range_db", label: "Dynamic range", unit: "dB", step: 1, big: 10 },
+      { path: "display.grey_levels", label: "Grey levels", unit: "", step: 1, big: 16, integer: true, range: [2, 256] },
+      {
+        path: "display.doppler.mode", label: "Colour flow", kind: "choice",
+        options: [["off", "off"], ["velocity", "velocity (direction)"], ["power", "power (no direction)"]],
+      },
+      { path: "display.doppler.scale_cm_s", label: "Colour scale", unit: "cm/s", step: 1, big: 10 },
+    ],
+  },
 ];
 
 const GAUGES = [18, 19, 20, 21, 22, 23, 24, 25, 26, 27];
@@ -58,12 +71,16 @@ function idFor(path) {
   return "ctl-" + path.replace(/[^a-z0-9]+/gi, "-");
 }
 
+const UNIT_WORDS = { "°": "degrees", dB: "decibels", "cm/s": "centimetres per second", "": "" };
+
 /**
- * Build the controls into `containers` ({probe, needle, beam} elements) and wire them.
- * Returns { sync(scene), nudge(path, delta, t), setNumber(path, value, t) }.
+ * Build the controls into `containers` ({probe, needle, beam, display} elements) and wire them.
+ * Returns { sync(), onDraw(snap), nudge(path, delta, t), set(path, value, t), steps(path),
+ * setRows(container, specs) }.
  */
 export function createControls(state, limits, containers) {
   const pairs = new Map(); // path -> { spec, range, number, row }
+  const choices = new Map(); // path -> select, for plain choice rows
   let gaugeSelect = null;
   let gaugeCustom = null; // shown only while the scene gives an outer diameter instead of a gauge
   let gaugeNote = null;
@@ -85,6 +102,7 @@ export function createControls(state, limits, containers) {
   }
 
   function limitOf(spec) {
+    if (spec.range) return spec.range;
     if (spec.path === "needle.inserted_mm") {
       const len = state.value("needle.length_mm");
       return [0, Number.isFinite(len) ? len : 300];
@@ -93,6 +111,7 @@ export function createControls(state, limits, containers) {
   }
 
   function applyNumber(spec, value, t) {
+    if (spec.integer) value = Math.round(value);
     const current = state.value(spec.path);
     if (spec.model && state.value("probe.elevation.model") !== spec.model) {
       // Editing a parameter of the other slab model switches to that model.
@@ -118,6 +137,8 @@ export function createControls(state, limits, containers) {
   }
 
   function onNumberEvent(pair, source, ev) {
+    // A committed change ends a movement: let deferred work (full-size image, plots) run now.
+    if (ev.type === "change") queueMicrotask(() => state.settle());
     const text = source.value.trim();
     const value = Number(text);
     if (text === "" || !Number.isFinite(value)) {
@@ -126,8 +147,10 @@ export function createControls(state, limits, containers) {
       return;
     }
     if (applyNumber(pair.spec, value, ev.timeStamp)) {
+      const shown = pair.spec.integer ? Math.round(value) : value;
       const twin = source === pair.range ? pair.number : pair.range;
-      twin.value = inputValue(value);
+      twin.value = inputValue(shown);
+      if (pair.spec.integer && source === pair.number && ev.type === "change") source.value = inputValue(shown);
     } else if (ev.type === "change" || source === pair.range) {
       // Refused: show the scene's value again (the message naming the field stays on screen).
       // While typing into the number field the text is left alone until it is committed.
@@ -171,13 +194,13 @@ export function createControls(state, limits, containers) {
     if (spec.model) row.dataset.model = spec.model;
     const label = el("label", { for: id }, spec.label);
     const range = el("input", {
-      type: "range", id, min: String(min), max: String(max), step: "any",
+      type: "range", id, min: String(min), max: String(max), step: spec.integer ? "1" : "any",
       "data-control": spec.path,
     });
     const number = el("input", {
-      type: "number", min: String(min), max: String(max), step: "any",
-      inputmode: "decimal", "data-control": spec.path,
-      "aria-label": `${spec.label}, ${spec.unit === "°" ? "degrees" : spec.unit}`,
+      type: "number", min: String(min), max: String(max), step: spec.integer ? "1" : "any",
+      inputmode: spec.integer ? "numeric" : "decimal", "data-control": spec.path,
+      "aria-label": spec.unit ? `${spec.label}, ${UNIT_WORDS[spec.unit] ?? spec.unit}` : spec.label,
     });
     const unit = el("span", { class: "unit", "aria-hidden": "true" }, spec.unit);
     row.append(label, range, number, unit);
@@ -244,12 +267,50 @@ export function createControls(state, limits, containers) {
     return row;
   }
 
+  function choiceRow(spec) {
+    const id = idFor(spec.path);
+    const row = el("div", { class: "ctl ctl-select" });
+    const label = el("label", { for: id }, spec.label);
+    const select = el("select", { id, "data-control": spec.path });
+    for (const [value, words] of spec.options) select.append(el("option", { value }, words));
+    row.append(label, select);
+    const onPick = (ev) => {
+      if (state.value(spec.path) === select.value) return;
+      if (!state.apply(spec.path, select.value, ev.timeStamp)) select.value = state.value(spec.path);
+    };
+    select.addEventListener("input", onPick);
+    select.addEventListener("change", onPick);
+    choices.set(spec.path, select);
+    return row;
+  }
+
+  function buildRow(spec) {
+    if (spec.kind === "gauge") return gaugeRow(spec);
+    if (spec.kind === "model") return modelRow(spec);
+    if (spec.kind === "choice") return choiceRow(spec);
+    return numberRow(spec);
+  }
+
   for (const group of CONTROL_GROUPS) {
     const box = containers[group.id];
-    for (const spec of group.controls) {
-      if (spec.kind === "gauge") box.append(gaugeRow(spec));
-      else if (spec.kind === "model") box.append(modelRow(spec));
-      else box.append(numberRow(spec));
+    if (!box) continue;
+    for (const spec of group.controls) box.append(buildRow(spec));
+  }
+
+  // Rows built later into one container (the time-gain bank, whose count follows the scene).
+  const extraRows = new Map(); // container -> [paths]
+
+  /**
+   * Replace the rows of `container` with number rows for `specs` (same fields as the table
+   * above, plus `range: [min, max]`), wired like every other control.
+   */
+  function setRows(container, specs) {
+    for (const path of extraRows.get(container) || []) pairs.delete(path);
+    container.replaceChildren(...specs.map((spec) => numberRow(spec)));
+    extraRows.set(container, specs.map((s) => s.path));
+    for (const spec of specs) {
+      const v = currentNumber(spec);
+      if (Number.isFinite(v)) showBoth(pairs.get(spec.path), v);
     }
   }
 
@@ -261,6 +322,10 @@ export function createControls(state, limits, containers) {
     } else {
       if (!gaugeCustom.isConnected) gaugeSelect.append(gaugeCustom);
       gaugeSelect.value = "";
+    }
+    for (const [path, select] of choices) {
+      const v = state.value(path);
+      if (select.value !== v) select.value = v;
     }
     const elev = state.value("probe.elevation");
     modelSelect.value = elev.model;
@@ -289,6 +354,10 @@ export function createControls(state, limits, containers) {
 
   /** Per-frame touch: the outer-diameter note beside the gauge, and the model rows. */
   function onDraw(snap) {
+    for (const [path, select] of choices) {
+      const v = state.value(path);
+      if (select.value !== v && document.activeElement !== select) select.value = v;
+    }
     const od = snap.report.needle.outer_diameter_mm;
     const text = `${mm(od, 2)} OD`;
     if (gaugeNote.textContent !== text) gaugeNote.textContent = text;
@@ -306,11 +375,27 @@ export function createControls(state, limits, containers) {
     if (applyNumber(pair.spec, next, t)) showValue(pair, next);
   }
 
+  /** Set one numeric field (clamped to its range) and show it in its controls. */
+  function set(path, value, t) {
+    const pair = pairs.get(path);
+    if (!pair) return state.apply(path, value, t);
+    const [min, max] = limitOf(pair.spec);
+    const next = Math.min(max, Math.max(min, value));
+    const ok = applyNumber(pair.spec, next, t);
+    if (ok) showValue(pair, next);
+    return ok;
+  }
+
+  /** Enable or disable the controls inside `container` (a rehearsal locks the needle). */
+  function setEnabled(container, enabled) {
+    for (const e of container.querySelectorAll("input, select")) e.disabled = !enabled;
+  }
+
   /** The keyboard step sizes of a control, for the shortcut table. */
   function steps(path) {
     const pair = pairs.get(path);
     return pair ? { step: pair.spec.step, big: pair.spec.big } : { step: 1, big: 10 };
   }
 
-  return { sync, onDraw, nudge, steps };
+  return { sync, onDraw, nudge, set, steps, setRows, setEnabled };
 }

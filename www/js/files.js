@@ -37,6 +37,7 @@ export function createFiles({ state, select, fileInput, saveButton, dropTarget, 
   opened.value = OPENED;
   opened.disabled = true;
   let current = select.value;
+  let locked = false; // a rehearsal holds the scene
 
   function markOpened(name) {
     opened.textContent = `Your file: ${name}`;
@@ -98,6 +99,10 @@ export function createFiles({ state, select, fileInput, saveButton, dropTarget, 
     ev.preventDefault();
     depth = 0;
     dropHint.hidden = true;
+    if (locked) {
+      state.setError("Leave the rehearsal before opening another scene.");
+      return;
+    }
     openFile(ev.dataTransfer.files[0], ev.timeStamp);
   });
 
@@ -117,5 +122,13 @@ export function createFiles({ state, select, fileInput, saveButton, dropTarget, 
   return {
     /** Select a demo in the picker without loading it (the first scene at start-up). */
     showDemo(file) { select.value = file; current = file; },
+    /** While a rehearsal runs the scene may not be swapped (picker, file, drop, save). */
+    setLocked(on) {
+      locked = on;
+      select.disabled = on;
+      fileInput.disabled = on;
+      saveButton.disabled = on;
+      fileInput.closest("label").classList.toggle("is-disabled", on);
+    },
   };
 }

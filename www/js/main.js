@@ -5,6 +5,11 @@ import { Session, limitsByPath, version } from "./wasm.js";
 import { createState } from "./state.js";
 import { createControls } from "./controls.js";
 import { createSliceView } from "./slice_view.js";
+import { createEchoImage } from "./echo_image.js";
+import { createScreenSettings } from "./screen_settings.js";
+import { createCaptureView } from "./capture_view.js";
+import { createWalkView } from "./walk_view.js";
+import { createRehearsal } from "./rehearsal.js";
 import { createSceneView } from "./scene_view.js";
 import { createSideView } from "./side_view.js";
 import { createReadouts } from "./readouts.js";
@@ -19,19 +24,33 @@ function boot() {
   const session = new Session(demo.text);
   const state = createState(session);
 
-  const controls = createControls(state, limitsByPath(), {
+  const limits = limitsByPath();
+  const controls = createControls(state, limits, {
     probe: $("#controls-probe"),
     needle: $("#controls-needle"),
     beam: $("#controls-beam"),
+    display: $("#controls-display"),
   });
   controls.sync();
   state.onLoad(() => controls.sync());
   state.onDraw((snap, what) => { if (what.has("all")) controls.onDraw(snap); });
 
   createReadouts(document, state);
-  createSliceView($("#slice-stage"), state);
+  const echo = createEchoImage(state);
+  createScreenSettings(state, controls, limits, echo, {
+    tgc: $("#controls-tgc"),
+    tgcLevel: $("#tgc-level"),
+    key: $("[data-colour-key]"),
+  });
+  createSliceView($("#slice-stage"), state, echo);
+  // Off-screen renders of the current scene for tests and `cargo xtask bench`.
+  globalThis.slicewise.renderFingerprint = (width, height) => echo.renderFingerprint(width, height);
+  globalThis.slicewise.benchEcho = (width, height, repeats) => echo.benchEcho(width, height, repeats);
+  globalThis.slicewise.echoLearnt = () => echo.learnt();
   createSceneView($("#bench-canvas"), state, $("#bench-reset"));
   createSideView($("#edge-canvas"), state, $("#edge-caption"));
+  const capture = createCaptureView($("[aria-labelledby='capture-heading']"), state, controls);
+  const walk = createWalkView($("[aria-labelledby='walk-heading']"), state);
 
   const files = createFiles({
     state,
@@ -44,6 +63,15 @@ function boot() {
   files.showDemo(demo.file);
 
   wireViewToggles(state);
+  createRehearsal({
+    state,
+    controls,
+    files,
+    capture,
+    walk,
+    needleControls: $("#controls-needle"),
+    overlayBox: $('input[type="checkbox"][data-control="view.overlay"]'),
+  });
   installShortcuts(controls);
   renderKeyList($("#key-list"), controls);
   const v = $("#version");

@@ -49,6 +49,16 @@ function setValue(el, value) {
   if (el.getAttribute("data-value") !== value) el.setAttribute("data-value", value);
 }
 
+/**
+ * Show a readout kept by another module (echo, capture, walk, rehearsal): words for people,
+ * the raw value (or `rawValue` when given, e.g. "lo,hi") in data-value.
+ */
+export function showReadout(el, value, words, rawValue) {
+  if (!el) return;
+  setValue(el, rawValue !== undefined ? rawValue : typeof value === "boolean" ? String(value) : raw(value));
+  setText(el, words);
+}
+
 export function createReadouts(root, state) {
   const els = [...root.querySelectorAll("[data-readout]")];
   const byPath = els.filter((e) => READOUTS[e.dataset.readout]);

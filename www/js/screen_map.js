@@ -3,8 +3,8 @@
 
 import { fovBounds, fovOutline } from "./frame_math.js";
 
-/** Margins around the field of view, CSS px: room for the depth scale, ruler and marker. */
-export const MARGIN = { left: 46, right: 22, top: 30, bottom: 30 };
+/** Margins around the field of view, CSS px: room for the depth scale, ruler, scale bar and marker. */
+export const MARGIN = { left: 46, right: 22, top: 30, bottom: 44 };
 
 /**
  * A mapping for a canvas of cssWidth × cssHeight showing the geometry's field of view.

@@ -17,6 +17,12 @@ const TOGGLES = [
   { key: "o", control: "view.overlay", what: "Overlay on / off" },
 ];
 
+/** Keys of a rehearsal (rehearsal.js acts on them while one runs). */
+export const REHEARSAL_KEYS = [
+  { key: "t", what: "Rehearsal: \u201cthat is the tip\u201d" },
+  { key: "g", what: "Rehearsal: \u201cthat is the shaft\u201d" },
+];
+
 /** Keys that only act where the focus is. */
 const LOCAL = [
   { keys: "← →", what: "On a slider: one step; Shift or PageUp / PageDown: big step" },
@@ -24,7 +30,8 @@ const LOCAL = [
   { keys: "Tab", what: "Next control" },
 ];
 
-function typingInto(target) {
+/** Whether a key press goes into a text field (and so is not a shortcut). */
+export function typingInto(target) {
   if (!target || !target.tagName) return false;
   const tag = target.tagName.toLowerCase();
   if (tag === "textarea" || tag === "select") return true;
@@ -58,7 +65,7 @@ export function installShortcuts(controls) {
     const control = toggles.get(key);
     if (control) {
       const box = document.querySelector(`input[type="checkbox"][data-control="${control}"]`);
-      if (box) {
+      if (box && !box.disabled) {
         box.checked = !box.checked;
         box.dispatchEvent(new Event("change", { bubbles: true }));
         ev.preventDefault();
@@ -82,6 +89,7 @@ export function renderKeyList(dl, controls) {
     rows.push([[m.keys[0].toUpperCase(), m.keys[1].toUpperCase()], `${m.what} (${step}${unit}; Shift ${big}${unit})`]);
   }
   for (const t of TOGGLES) rows.push([[t.key.toUpperCase()], t.what]);
+  for (const r of REHEARSAL_KEYS) rows.push([[r.key.toUpperCase()], r.what]);
   for (const l of LOCAL) rows.push([[l.keys], l.what]);
   for (const [keys, what] of rows) {
     const dt = document.createElement("dt");

@@ -1,7 +1,7 @@
-// The slice screen's bottom layer: where a grey-scale simulated image will be drawn.
-// Until the echo image exists it paints a plain dark field with faint tissue-layer lines.
-// To plug an image in, draw it here (e.g. putImageData from wasm memory, then drawImage
-// scaled with map.x/map.y); the overlay and frame layers above stay as they are.
+// The slice screen's bottom layer: the simulated echo image (echo_image.js renders it), placed
+// by its own meta (mm per pixel, centre of the first pixel) through the screen map, so it lines
+// up with the overlay and mirrors with the screen. Without a frame it paints a plain dark field.
+// The tissue-layer guides are truth, not image: the overlay draws them (drawLayerGuides).
 
 import { COLOURS } from "./palette.js";
 import { traceFov } from "./screen_map.js";
@@ -13,23 +13,27 @@ function vOfDepth(geom, zb, u) {
   return (zb - u * az) / bz;
 }
 
-export function drawImageLayer(ctx, map, snap, cssWidth, cssHeight) {
-  const geom = snap.geometry;
+/**
+ * Paint the bottom layer: the echo frame when there is one, else a plain field of view.
+ * `dpr` is the canvas's device-pixel ratio (the frame's origin is snapped to device pixels).
+ */
+export function drawImageLayer(ctx, map, snap, cssWidth, cssHeight, frame, dpr = 1) {
   ctx.fillStyle = COLOURS.screenOut;
   ctx.fillRect(0, 0, cssWidth, cssHeight);
-
+  if (frame) {
+    drawEchoFrame(ctx, map, frame, dpr);
+    return;
+  }
+  const geom = snap.geometry;
   ctx.save();
   ctx.beginPath();
   traceFov(ctx, map);
   ctx.fillStyle = COLOURS.screenIn;
   ctx.fill();
   ctx.clip();
-
   const { umin, umax } = map.bounds;
   const u0 = umin - 5;
   const u1 = umax + 5;
-
-  // Above the skin line (possible when the probe is rocked or tilted) is outside the body.
   ctx.beginPath();
   ctx.moveTo(map.x(u0), map.y(vOfDepth(geom, 0, u0)));
   ctx.lineTo(map.x(u1), map.y(vOfDepth(geom, 0, u1)));
@@ -38,6 +42,47 @@ export function drawImageLayer(ctx, map, snap, cssWidth, cssHeight) {
   ctx.closePath();
   ctx.fillStyle = COLOURS.air;
   ctx.fill();
+  ctx.restore();
+}
+
+/**
+ * The echo frame in image mm: pixel (0, 0) is centred at meta.top_left_mm, pixels are
+ * meta.mm_per_px apart; so its outer edge starts half a pixel before. Clipped to the field of
+ * view (a curved face's frame is the rectangle around the sector).
+ */
+function drawEchoFrame(ctx, map, frame, dpr) {
+  const m = frame.meta;
+  const su = m.mm_per_px.lateral;
+  const sv = m.mm_per_px.depth;
+  const uEdge = m.top_left_mm.lateral_mm - su / 2;
+  const vEdge = m.top_left_mm.depth_mm - sv / 2;
+  // Snap the origin to a device pixel: at one frame pixel per device pixel this keeps the image
+  // sharp, and it moves it by under half a device pixel.
+  const x0 = Math.round(map.x(uEdge) * dpr) / dpr;
+  const y0 = Math.round(map.y(vEdge) * dpr) / dpr;
+  ctx.save();
+  ctx.beginPath();
+  traceFov(ctx, map);
+  ctx.clip();
+  ctx.translate(x0, y0);
+  ctx.scale((map.flip ? -1 : 1) * map.k * su, map.k * sv);
+  ctx.imageSmoothingEnabled = true;
+  ctx.drawImage(frame.canvas, 0, 0);
+  ctx.restore();
+}
+
+/** Tissue-layer boundaries as faint dashed lines, labelled with the layer below each line. */
+export function drawLayerGuides(ctx, map, snap, alpha = 1) {
+  const geom = snap.geometry;
+  ctx.save();
+  ctx.globalAlpha = alpha;
+  ctx.beginPath();
+  traceFov(ctx, map);
+  ctx.clip();
+
+  const { umin, umax } = map.bounds;
+  const u0 = umin - 5;
+  const u1 = umax + 5;
 
   // Tissue-layer boundaries, labelled with the layer below each line.
   const layers = (snap.scene.tissue && snap.scene.tissue.layers) || [];

@@ -4,7 +4,8 @@
 
 import { COLOURS, kindStyle } from "./palette.js";
 import { makeScreenMap, traceFov } from "./screen_map.js";
-import { drawImageLayer } from "./slice_image.js";
+import { drawImageLayer, drawLayerGuides } from "./slice_image.js";
+import { wantedSize } from "./echo_image.js";
 import { needlePoint, toImage, add, scale } from "./frame_math.js";
 import { num, signedMm } from "./format.js";
 
@@ -75,20 +76,29 @@ function sectionPx(map, sec) {
   };
 }
 
+/** Fill the current path, lightly over the echo image so its texture shows through. */
+function softFill(ctx, fill, overImage) {
+  ctx.fillStyle = fill;
+  if (overImage) ctx.globalAlpha = 0.45;
+  ctx.fill();
+  ctx.globalAlpha = 1;
+}
+
 function fascicleCount(structure, minorMm) {
   const f = structure && structure.fascicles;
   if (f && f > 0) return Math.min(f, 40);
   return Math.max(3, Math.min(20, Math.round(minorMm * 2.5)));
 }
 
-function drawNerve(ctx, p, sec, structure) {
+function drawNerve(ctx, p, sec, structure, overImage) {
   const { stroke, fill } = kindStyle("nerve");
   ctx.save();
   ctx.translate(p.cx, p.cy);
   ctx.rotate(p.rot);
   if (sec.shape === "band") {
-    ctx.fillStyle = fill;
-    ctx.fillRect(-p.major, -p.minor, 2 * p.major, 2 * p.minor);
+    ctx.beginPath();
+    ctx.rect(-p.major, -p.minor, 2 * p.major, 2 * p.minor);
+    softFill(ctx, fill, overImage);
     ctx.strokeStyle = stroke;
     ctx.lineWidth = 2;
     for (const y of [-p.minor, p.minor]) {
@@ -103,12 +113,13 @@ function drawNerve(ctx, p, sec, structure) {
   } else {
     ctx.beginPath();
     ctx.ellipse(0, 0, p.major, p.minor, 0, 0, 2 * Math.PI);
-    ctx.fillStyle = fill;
-    ctx.fill();
+    softFill(ctx, fill, overImage);
     ctx.strokeStyle = stroke;
     ctx.lineWidth = 2;
     ctx.stroke();
-    // Fascicles: small rings packed inside (a honeycomb cue, not only colour).
+    // Fascicles: small rings packed inside (a honeycomb cue, not only colour); faint over the
+    // image, which shows its own.
+    if (overImage) ctx.globalAlpha = 0.45;
     const n = fascicleCount(structure, sec.semi_axes_mm[0]);
     const rr = Math.max(1.2, 0.62 * Math.min(p.major, p.minor) / Math.sqrt(n));
     ctx.lineWidth = 1;
@@ -126,15 +137,16 @@ function drawNerve(ctx, p, sec, structure) {
   ctx.restore();
 }
 
-function drawVessel(ctx, p, sec) {
+function drawVessel(ctx, p, sec, overImage) {
   const { stroke, fill } = kindStyle("vessel");
   ctx.save();
   ctx.translate(p.cx, p.cy);
   ctx.rotate(p.rot);
   ctx.strokeStyle = stroke;
   if (sec.shape === "band") {
-    ctx.fillStyle = fill;
-    ctx.fillRect(-p.major, -p.minor, 2 * p.major, 2 * p.minor);
+    ctx.beginPath();
+    ctx.rect(-p.major, -p.minor, 2 * p.major, 2 * p.minor);
+    softFill(ctx, fill, overImage);
     ctx.lineWidth = 3;
     for (const y of [-p.minor, p.minor]) {
       ctx.beginPath(); ctx.moveTo(-p.major, y); ctx.lineTo(p.major, y); ctx.stroke();
@@ -146,9 +158,8 @@ function drawVessel(ctx, p, sec) {
   } else {
     ctx.beginPath();
     ctx.ellipse(0, 0, p.major, p.minor, 0, 0, 2 * Math.PI);
-    ctx.fillStyle = fill;
-    ctx.fill();
-    ctx.lineWidth = 3;
+    softFill(ctx, fill, overImage);
+    ctx.lineWidth = overImage ? 2 : 3;
     ctx.stroke();
     // A thin inner ring: the wall (vessels have a double outline, nerves have fascicles).
     ctx.beginPath();
@@ -159,15 +170,14 @@ function drawVessel(ctx, p, sec) {
   ctx.restore();
 }
 
-function drawFluid(ctx, p) {
+function drawFluid(ctx, p, overImage) {
   const { stroke, fill } = kindStyle("fluid");
   ctx.save();
   ctx.translate(p.cx, p.cy);
   ctx.rotate(p.rot);
   ctx.beginPath();
   ctx.ellipse(0, 0, p.major, p.minor, 0, 0, 2 * Math.PI);
-  ctx.fillStyle = fill;
-  ctx.fill();
+  softFill(ctx, fill, overImage);
   ctx.setLineDash([5, 4]);
   ctx.lineWidth = 1.5;
   ctx.strokeStyle = stroke;
@@ -195,10 +205,22 @@ function outlinePx(p, sec, n = 40) {
   return pts;
 }
 
-function drawBone(ctx, p, sec, bottomY) {
+function drawBone(ctx, p, sec, bottomY, overImage) {
   const pts = outlinePx(p, sec);
   let xmin = Infinity, xmax = -Infinity;
   for (const [x] of pts) { xmin = Math.min(xmin, x); xmax = Math.max(xmax, x); }
+  if (overImage) {
+    // The image shows the shadow and the bright surface itself: outline the cut only.
+    ctx.beginPath();
+    pts.forEach(([x, y], i) => (i ? ctx.lineTo(x, y) : ctx.moveTo(x, y)));
+    ctx.closePath();
+    ctx.setLineDash([6, 4]);
+    ctx.strokeStyle = COLOURS.bone;
+    ctx.lineWidth = 1.5;
+    ctx.stroke();
+    ctx.setLineDash([]);
+    return;
+  }
   // Acoustic shadow below the bone: nothing deeper is seen.
   ctx.save();
   ctx.beginPath();
@@ -243,7 +265,19 @@ function drawBone(ctx, p, sec, bottomY) {
   ctx.lineCap = "butt";
 }
 
-function drawDot(ctx, x, y, r) {
+function drawDot(ctx, x, y, r, overImage) {
+  if (overImage) {
+    // A ring around the echo, so the image's own dot stays visible inside it.
+    ctx.beginPath();
+    ctx.arc(x, y, r + 3.5, 0, 2 * Math.PI);
+    ctx.strokeStyle = "rgba(0,0,0,0.55)";
+    ctx.lineWidth = 3.5;
+    ctx.stroke();
+    ctx.strokeStyle = COLOURS.needle;
+    ctx.lineWidth = 1.6;
+    ctx.stroke();
+    return;
+  }
   ctx.beginPath();
   ctx.arc(x, y, r + 3, 0, 2 * Math.PI);
   ctx.fillStyle = COLOURS.needleHalo;
@@ -254,12 +288,61 @@ function drawDot(ctx, x, y, r) {
   ctx.fill();
 }
 
+/** An outline around the segment a → b at `radius` px (a stadium), needle-coloured. */
+function drawCapsule(ctx, ax, ay, bx, by, radius) {
+  const ang = Math.atan2(by - ay, bx - ax);
+  ctx.beginPath();
+  ctx.arc(ax, ay, radius, ang + Math.PI / 2, ang + (3 * Math.PI) / 2);
+  ctx.arc(bx, by, radius, ang - Math.PI / 2, ang + Math.PI / 2);
+  ctx.closePath();
+  ctx.strokeStyle = "rgba(0,0,0,0.55)";
+  ctx.lineWidth = 3.5;
+  ctx.stroke();
+  ctx.strokeStyle = COLOURS.needle;
+  ctx.lineWidth = 1.6;
+  ctx.stroke();
+}
+
+/**
+ * The in-slab stretch a → b (canvas px) as two rails either side of the needle's echo, so the
+ * image's bright line shows between them.
+ */
+function drawRails(ctx, ax, ay, bx, by, halfPx) {
+  const len = Math.hypot(bx - ax, by - ay) || 1;
+  const nx = -(by - ay) / len, ny = (bx - ax) / len;
+  ctx.beginPath();
+  for (const side of [-1, 1]) {
+    const ox = side * nx * halfPx, oy = side * ny * halfPx;
+    ctx.moveTo(ax + ox, ay + oy);
+    ctx.lineTo(bx + ox, by + oy);
+  }
+  ctx.lineCap = "butt";
+  ctx.strokeStyle = "rgba(0,0,0,0.55)";
+  ctx.lineWidth = 3.5;
+  ctx.stroke();
+  ctx.strokeStyle = COLOURS.needle;
+  ctx.lineWidth = 1.6;
+  ctx.stroke();
+}
+
 /** Where a point of the bevel lies on screen: the axis at s, pushed across by `across` mm along the bevel facing. */
 function bevelPoint(geom, s, across) {
   return toImage(geom, add(needlePoint(geom, s), scale(geom.bevel_facing, across)));
 }
 
-function drawNeedle(ctx, map, snap) {
+/** [0, L] without the in-slab intervals: the stretches the screen does not show. */
+function hiddenStretches(L, inSlab) {
+  const out = [];
+  let s = 0;
+  for (const [s0, s1] of [...inSlab].sort((a, b) => a[0] - b[0])) {
+    if (s0 > s) out.push([s, s0]);
+    s = Math.max(s, s1);
+  }
+  if (L > s) out.push([s, L]);
+  return out;
+}
+
+function drawNeedle(ctx, map, snap, overImage) {
   const geom = snap.geometry;
   const n = snap.report.needle;
   const L = snap.scene.needle.inserted_mm;
@@ -269,10 +352,14 @@ function drawNeedle(ctx, map, snap) {
   const bevelStart = L - n.bevel_length_mm;
 
   if (snap.view.ghost && L > 0) {
-    const a = proj(0), b = proj(L);
+    // Over the image, the hidden stretches only: the in-slab part is the image's own echo.
+    const stretches = overImage ? hiddenStretches(L, n.in_slab_mm) : [[0, L]];
     ctx.beginPath();
-    ctx.moveTo(map.x(a.u), map.y(a.v));
-    ctx.lineTo(map.x(b.u), map.y(b.v));
+    for (const [s0, s1] of stretches) {
+      const a = proj(s0), b = proj(s1);
+      ctx.moveTo(map.x(a.u), map.y(a.v));
+      ctx.lineTo(map.x(b.u), map.y(b.v));
+    }
     ctx.strokeStyle = COLOURS.ghost;
     ctx.globalAlpha = 0.8;
     ctx.lineWidth = Math.max(1.5, widthPx * 0.5);
@@ -294,19 +381,34 @@ function drawNeedle(ctx, map, snap) {
         const heel = bevelPoint(geom, Math.max(s0, bevelStart), r);
         let hx = map.x(heel.u), hy = map.y(heel.v), px = map.x(point.u), py = map.y(point.v);
         const dotR = Math.max(3, r * k * 0.85);
+        if (overImage) {
+          // Over the image: one capsule around the true heel and point, not spread apart.
+          drawCapsule(ctx, hx, hy, px, py, dotR + 3.5);
+          continue;
+        }
         const gap = Math.hypot(px - hx, py - hy);
-        const need = 2 * dotR + 3;
+        const need = 2 * dotR + (overImage ? 9 : 3);
         if (gap < need) {
           const mx = (hx + px) / 2, my = (hy + py) / 2;
           const ux = gap > 0.5 ? (px - hx) / gap : 0, uy = gap > 0.5 ? (py - hy) / gap : 1;
           hx = mx - (ux * need) / 2; hy = my - (uy * need) / 2;
           px = mx + (ux * need) / 2; py = my + (uy * need) / 2;
         }
-        drawDot(ctx, hx, hy, dotR);
-        drawDot(ctx, px, py, dotR);
+        drawDot(ctx, hx, hy, dotR, overImage);
+        drawDot(ctx, px, py, dotR, overImage);
       } else {
         const m = proj((s0 + s1) / 2);
-        drawDot(ctx, map.x(m.u), map.y(m.v), Math.max(3.5, widthPx / 2));
+        drawDot(ctx, map.x(m.u), map.y(m.v), Math.max(3.5, widthPx / 2), overImage);
+      }
+    } else if (overImage) {
+      drawRails(ctx, map.x(a.u), map.y(a.v), map.x(b.u), map.y(b.v), widthPx / 2 + 4);
+      if (withTip) {
+        const t = proj(L);
+        ctx.beginPath();
+        ctx.arc(map.x(t.u), map.y(t.v), widthPx / 2 + 4, 0, 2 * Math.PI);
+        ctx.strokeStyle = "#ffffff";
+        ctx.lineWidth = 1.6;
+        ctx.stroke();
       }
     } else {
       ctx.lineCap = "round";
@@ -381,7 +483,7 @@ function drawTipMarks(ctx, map, snap, cssW, cssH, labeler) {
   labeler.place(words, right ? x + 11 : x - 11, y + 13, COLOURS.ghost, right ? "left" : "right");
 }
 
-function drawOverlay(ctx, map, snap, cssW, cssH) {
+function drawOverlay(ctx, map, snap, cssW, cssH, overImage = false) {
   const { report, scene } = snap;
   const bottomY = map.y(map.bounds.vmax) + 2;
   ctx.save();
@@ -397,14 +499,15 @@ function drawOverlay(ctx, map, snap, cssW, cssH) {
   for (const { st, structure } of items) {
     st.sections.forEach((sec, j) => {
       const p = sectionPx(map, sec);
-      if (st.kind === "nerve") drawNerve(ctx, p, sec, structure);
-      else if (st.kind === "vessel") drawVessel(ctx, p, sec);
-      else if (st.kind === "fluid") drawFluid(ctx, p);
-      else if (st.kind === "bone") drawBone(ctx, p, sec, bottomY);
+      // Over the image, fills are lighter so the echo texture inside shows through.
+      if (st.kind === "nerve") drawNerve(ctx, p, sec, structure, overImage);
+      else if (st.kind === "vessel") drawVessel(ctx, p, sec, overImage);
+      else if (st.kind === "fluid") drawFluid(ctx, p, overImage);
+      else if (st.kind === "bone") drawBone(ctx, p, sec, bottomY, overImage);
       if (j === 0 || sec.in_view) labels.push({ st, p, sec });
     });
   }
-  drawNeedle(ctx, map, snap);
+  drawNeedle(ctx, map, snap, overImage);
   ctx.restore();
 
   const labeler = makeLabeler(ctx, cssW, cssH);
@@ -478,7 +581,9 @@ function drawFrame(ctx, map, snap, cssW, cssH) {
   for (let v = 0; v <= geom.depth_mm + 1e-9; v += labelStep) {
     label(ctx, num(v, 0), xl - 10, map.y(v), COLOURS.frameText, "right", 11);
   }
-  label(ctx, "depth mm", 6, markerY(map, vmin), COLOURS.frameText, "left", 10);
+  // The caption moves down a line when a mirrored screen puts the marker in its place.
+  const markerLeft = map.flip && map.x(umax) < 70;
+  label(ctx, "depth mm", 6, markerY(map, vmin) + (markerLeft ? 14 : 0), COLOURS.frameText, "left", 10);
 
   // Lateral ruler under the field of view; + is the marker side.
   const yb = map.y(vmax) + 6;
@@ -499,6 +604,27 @@ function drawFrame(ctx, map, snap, cssW, cssH) {
     label(ctx, t, map.x(u), yb + 15, COLOURS.frameText, "center", 10);
   }
 
+  // Scale bar under the ruler, at the right end of the field of view.
+  const barMm = niceStep(map.k, 36);
+  const barPx = barMm * map.k;
+  const xr = Math.max(map.x(umin), map.x(umax));
+  const yBar = yb + 30;
+  ctx.beginPath();
+  ctx.moveTo(xr - barPx, yBar - 4);
+  ctx.lineTo(xr - barPx, yBar + 4);
+  ctx.moveTo(xr - barPx, yBar);
+  ctx.lineTo(xr, yBar);
+  ctx.moveTo(xr, yBar - 4);
+  ctx.lineTo(xr, yBar + 4);
+  ctx.lineWidth = 4;
+  ctx.strokeStyle = "rgba(0,0,0,0.7)";
+  ctx.stroke();
+  ctx.lineWidth = 2;
+  ctx.strokeStyle = COLOURS.frameText;
+  ctx.stroke();
+  label(ctx, `${barMm} mm`, xr - barPx - 7, yBar, COLOURS.frameText, "right", 11);
+  ctx.lineWidth = 1;
+
   // Orientation marker: the +lateral side of the probe.
   const mx = map.x(umax);
   const my = markerY(map, vmin);
@@ -514,8 +640,11 @@ function markerY(map, vmin) {
   return Math.max(9, map.y(vmin) - 15);
 }
 
-/** Create the slice screen inside `stage` (a positioned element holding three canvases). */
-export function createSliceView(stage, state) {
+/**
+ * Create the slice screen inside `stage` (a positioned element holding three canvases);
+ * `echo` (echo_image.js) supplies the simulated image for the bottom layer.
+ */
+export function createSliceView(stage, state, echo) {
   const [imageCanvas, overlayCanvas, frameCanvas] = ["image", "overlay", "frame"].map((name) =>
     stage.querySelector(`canvas[data-layer="${name}"]`));
   let cssW = 0, cssH = 0;
@@ -530,16 +659,21 @@ export function createSliceView(stage, state) {
     return false;
   }
 
-  function draw(snap) {
+  function draw(snap, settle) {
     if (!snap.geometry || cssW < 20 || cssH < 20) return;
     const dpr = Math.min(2, window.devicePixelRatio || 1);
     const map = makeScreenMap(snap.geometry, cssW, cssH, snap.view.flip);
+    const [fw, fh] = wantedSize(map, dpr);
+    const frame = echo ? echo.frameFor(snap, fw, fh, settle) : null;
     const ictx = setupCanvas(imageCanvas, cssW, cssH, dpr);
-    drawImageLayer(ictx, map, snap, cssW, cssH);
+    drawImageLayer(ictx, map, snap, cssW, cssH, frame, dpr);
     const octx = setupCanvas(overlayCanvas, cssW, cssH, dpr);
     octx.clearRect(0, 0, cssW, cssH);
     overlayCanvas.style.visibility = snap.view.overlay ? "visible" : "hidden";
-    if (snap.view.overlay) drawOverlay(octx, map, snap, cssW, cssH);
+    if (snap.view.overlay) {
+      drawLayerGuides(octx, map, snap, frame ? 0.8 : 1);
+      drawOverlay(octx, map, snap, cssW, cssH, Boolean(frame));
+    }
     const fctx = setupCanvas(frameCanvas, cssW, cssH, dpr);
     drawFrame(fctx, map, snap, cssW, cssH);
   }
@@ -547,6 +681,6 @@ export function createSliceView(stage, state) {
   measure();
   new ResizeObserver(() => { if (measure()) state.requestView("slice"); }).observe(stage);
   state.onDraw((snap, what) => {
-    if (what.has("all") || what.has("slice")) draw(snap);
+    if (what.has("all") || what.has("slice") || what.has("echo") || what.has("settle")) draw(snap, what.has("settle"));
   });
 }

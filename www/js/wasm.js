@@ -1,6 +1,6 @@
 // Loads the WebAssembly core. The only module that imports the generated package.
 
-import init, { Session, fieldLimits, version } from "../pkg/slicewise.js";
+import init, { Session, EchoView, wasmMemory, fieldLimits, version } from "../pkg/slicewise.js";
 
 // The single-file build (cargo xtask dist) carries the wasm as base64, so it also works from
 // file:// where fetching a sibling file is not allowed.
@@ -14,4 +14,4 @@ export function limitsByPath() {
   return out;
 }
 
-export { Session, version };
+export { Session, EchoView, wasmMemory, version };
