@@ -2,17 +2,22 @@
 //! scenes, and the cost per pixel. Run with
 //! `cargo run --release -p slicewise --example bench_echo` (numbers are printed, never
 //! asserted). "probe" frames move the probe every frame (all tables rebuilt); "needle" frames
-//! only advance the needle (the speckle and texture grids are reused, as when a user drags the
-//! needle slider).
+//! only advance the needle (the speckle and texture grids and the needle-free echo are reused,
+//! as when a user drags the needle slider).
+//!
+//! Besides the lines for people, one line for tools:
+//! `NATIVE_ECHO_MS {"256": x, "512": y, "1024": z}` — the median "probe" frame time, ms, of the
+//! linear demo scene `inplane-past-vessel` at each size.
 
 use std::time::Instant;
 
+/// The scene whose "probe" medians make the machine-readable line.
+const LINEAR_DEMO: &str = "inplane-past-vessel.scene.json";
+
 fn main() {
     let root = concat!(env!("CARGO_MANIFEST_DIR"), "/../scenes-demo/");
-    let scenes = [
-        "inplane-past-vessel.scene.json",
-        "deep-curved-target.scene.json",
-    ];
+    let scenes = [LINEAR_DEMO, "deep-curved-target.scene.json"];
+    let mut linear_probe_ms: Vec<(u32, f64)> = Vec::new();
     println!("echo image, one thread, median of repeated frames");
     for name in scenes {
         let text = std::fs::read_to_string(format!("{root}{name}")).expect("demo scene");
@@ -54,7 +59,15 @@ fn main() {
                     "{name:32} {label:12} {side:4}²: median {median:7.2} ms, {:5.1} ns/pixel",
                     median * 1e6 / px
                 );
+                if name == LINEAR_DEMO && label == "probe" {
+                    linear_probe_ms.push((side, median));
+                }
             }
         }
     }
+    let fields: Vec<String> = linear_probe_ms
+        .iter()
+        .map(|(side, ms)| format!("\"{side}\": {ms:.3}"))
+        .collect();
+    println!("NATIVE_ECHO_MS {{{}}}", fields.join(", "));
 }

@@ -174,8 +174,11 @@ fn execute(verb: Verb) -> Result<Value, String> {
         }
         Verb::Walk(w) => {
             let scene = load_with_overrides(&w.scene)?;
-            crate::check_walk(&scene, w.from_mm, w.to_mm, w.step_mm, |f| format!("--{}", f.replace('_', "-")))?;
-            serde_json::to_value(crate::walk(&scene, w.from_mm, w.to_mm, w.step_mm)).map_err(|e| e.to_string())
+            crate::check_walk(&scene, w.from_mm, w.to_mm, w.step_mm, |f| {
+                format!("--{}", f.replace('_', "-"))
+            })?;
+            serde_json::to_value(crate::walk(&scene, w.from_mm, w.to_mm, w.step_mm))
+                .map_err(|e| e.to_string())
         }
     }
 }

@@ -126,25 +126,59 @@ fn capture_and_walk_print_their_reports() {
     assert!(c["slide"]["window_mm"].is_array());
     assert!(c["reason"].is_null());
     // Tilting to the reported centre shows the tip.
-    let (_, out, _) = run(&["section", "scenes-demo/shaft-dot-past-nerve.scene.json", "--set", &format!("probe.pose.tilt_deg={centre}")]);
+    let (_, out, _) = run(&[
+        "section",
+        "scenes-demo/shaft-dot-past-nerve.scene.json",
+        "--set",
+        &format!("probe.pose.tilt_deg={centre}"),
+    ]);
     let s: serde_json::Value = serde_json::from_str(&out).unwrap();
     assert_eq!(s["needle"]["tip_in_slab"], true);
     assert!(s["needle"]["tip_offset_mm"].as_f64().unwrap().abs() < 1e-9);
 
-    let (code, out, err) = run(&["walk", "scenes-demo/shaft-dot-past-nerve.scene.json", "--from-mm", "14", "--to-mm", "21", "--step-mm", "0.5"]);
+    let (code, out, err) = run(&[
+        "walk",
+        "scenes-demo/shaft-dot-past-nerve.scene.json",
+        "--from-mm",
+        "14",
+        "--to-mm",
+        "21",
+        "--step-mm",
+        "0.5",
+    ]);
     assert_eq!(code, 0, "{err}");
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     let steps = v["steps"].as_array().unwrap();
     assert_eq!(steps.len(), 15);
     let last = steps.last().unwrap();
     assert_eq!(last["inserted_mm"], 21.0);
-    assert!((last["tilt_centre_deg"].as_f64().unwrap() - centre).abs() < 1e-9, "the last step is the scene itself");
+    assert!(
+        (last["tilt_centre_deg"].as_f64().unwrap() - centre).abs() < 1e-9,
+        "the last step is the scene itself"
+    );
     assert!(v["retilts"].is_u64() && v["blind_advance_mm"].is_f64());
 
-    let (code, _, err) = run(&["walk", "scenes-demo/shaft-dot-past-nerve.scene.json", "--from-mm", "14", "--to-mm", "21", "--step-mm", "0"]);
+    let (code, _, err) = run(&[
+        "walk",
+        "scenes-demo/shaft-dot-past-nerve.scene.json",
+        "--from-mm",
+        "14",
+        "--to-mm",
+        "21",
+        "--step-mm",
+        "0",
+    ]);
     assert_eq!(code, 1);
-    assert_eq!(err.trim_end(), "slicewise: --step-mm: must be a number from 0.01 to 50 mm, got 0");
-    let (code, out, _) = run(&["capture", "scenes-demo/shaft-dot-past-nerve.scene.json", "--set", "needle.inserted_mm=0"]);
+    assert_eq!(
+        err.trim_end(),
+        "slicewise: --step-mm: must be a number from 0.01 to 50 mm, got 0"
+    );
+    let (code, out, _) = run(&[
+        "capture",
+        "scenes-demo/shaft-dot-past-nerve.scene.json",
+        "--set",
+        "needle.inserted_mm=0",
+    ]);
     assert_eq!(code, 0);
     assert!(out.contains("not inserted"));
 }

@@ -4,21 +4,9 @@
 
 import { COLOURS, kindStyle } from "./palette.js";
 import { add, sub, scale, dot, cross, unit, toWorld, needlePoint, halfAngle, slabThicknessAt } from "./frame_math.js";
+import { FONT, setupCanvas } from "./canvas.js";
 
-const FONT = "system-ui, -apple-system, 'Segoe UI', Roboto, sans-serif";
 const DEG = Math.PI / 180;
-
-function setupCanvas(canvas, w, h, dpr) {
-  const W = Math.max(1, Math.round(w * dpr));
-  const H = Math.max(1, Math.round(h * dpr));
-  if (canvas.width !== W || canvas.height !== H) {
-    canvas.width = W;
-    canvas.height = H;
-  }
-  const ctx = canvas.getContext("2d");
-  ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-  return ctx;
-}
 
 /** Clip segment a-b to the square |x − cx|, |y − cy| ≤ half (Liang–Barsky on x and y). */
 function clipToSquare(a, b, cx, cy, half) {

@@ -5,32 +5,12 @@
 import { COLOURS } from "./palette.js";
 import { needlePoint, toImage, rangeOf, slabThicknessAt, dot } from "./frame_math.js";
 import { num, signedMm, mmAuto } from "./format.js";
+import { setupCanvas, rimmedText } from "./canvas.js";
 
-const FONT = "system-ui, -apple-system, 'Segoe UI', Roboto, sans-serif";
 const NICE_STRETCH = [1, 2, 3, 4, 5, 6, 8, 10, 12, 15, 20, 25, 30, 40, 50, 60, 80, 100];
 
-function setupCanvas(canvas, w, h, dpr) {
-  const W = Math.max(1, Math.round(w * dpr));
-  const H = Math.max(1, Math.round(h * dpr));
-  if (canvas.width !== W || canvas.height !== H) {
-    canvas.width = W;
-    canvas.height = H;
-  }
-  const ctx = canvas.getContext("2d");
-  ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-  return ctx;
-}
-
-function text(ctx, s, x, y, colour, align = "left", size = 10) {
-  ctx.font = `${size}px ${FONT}`;
-  ctx.textAlign = align;
-  ctx.textBaseline = "middle";
-  ctx.lineJoin = "round";
-  ctx.lineWidth = 3;
-  ctx.strokeStyle = "rgba(0,0,0,0.75)";
-  ctx.strokeText(s, x, y);
-  ctx.fillStyle = colour;
-  ctx.fillText(s, x, y);
+function sideText(ctx, s, x, y, colour, align = "left", size = 10) {
+  rimmedText(ctx, s, x, y, colour, align, size, "rgba(0,0,0,0.75)");
 }
 
 export function createSideView(canvas, state, captionEl) {
@@ -162,10 +142,10 @@ export function createSideView(canvas, state, captionEl) {
         const wantRight = tx >= xc;
         const onRight = wantRight ? outerRight + 105 < cssW : !(outerLeft - 105 > 0);
         const lx = onRight ? outerRight : outerLeft;
-        text(ctx, `tip ${signedMm(tip.elevation_mm)}`, lx, ty - 8, n.tip_in_slab ? COLOURS.needle : COLOURS.ghost, onRight ? "left" : "right", 11);
-        text(ctx, `slab ${mmAuto(tT)} thick`, lx, ty + 7, "#ffffff", onRight ? "left" : "right", 10);
+        sideText(ctx, `tip ${signedMm(tip.elevation_mm)}`, lx, ty - 8, n.tip_in_slab ? COLOURS.needle : COLOURS.ghost, onRight ? "left" : "right", 11);
+        sideText(ctx, `slab ${mmAuto(tT)} thick`, lx, ty + 7, "#ffffff", onRight ? "left" : "right", 10);
       } else {
-        text(ctx, "tip below the displayed depth", xc, M.top + plotH - 8, COLOURS.ghost, "center", 10);
+        sideText(ctx, "tip below the displayed depth", xc, M.top + plotH - 8, COLOURS.ghost, "center", 10);
       }
     }
 
@@ -176,7 +156,7 @@ export function createSideView(canvas, state, captionEl) {
     const rStep = [5, 10, 20, 50].find((st) => st * kr >= 24) || 100;
     for (let r = 0; r <= depth + 1e-9; r += rStep) {
       ctx.beginPath(); ctx.moveTo(M.left - 4, Y(r)); ctx.lineTo(M.left, Y(r)); ctx.stroke();
-      text(ctx, num(r, 0), M.left - 6, Y(r), "rgba(236, 226, 206, 0.8)", "right", 10);
+      sideText(ctx, num(r, 0), M.left - 6, Y(r), "rgba(236, 226, 206, 0.8)", "right", 10);
     }
     const eStep = [0.1, 0.2, 0.5, 1, 2, 5, 10].find((st) => st * ke >= 34) || 20;
     for (let e = -Math.floor(E / eStep) * eStep; e <= E + 1e-9; e += eStep) {
@@ -184,10 +164,10 @@ export function createSideView(canvas, state, captionEl) {
       ctx.beginPath(); ctx.moveTo(x, M.top + plotH); ctx.lineTo(x, M.top + plotH + 4); ctx.stroke();
       const digits = eStep < 1 ? 1 : 0;
       const t = Math.abs(e) < 1e-9 ? "0" : (e > 0 ? "+" : "") + num(e, digits);
-      text(ctx, t, x, M.top + plotH + 12, "rgba(236, 226, 206, 0.8)", "center", 10);
+      sideText(ctx, t, x, M.top + plotH + 12, "rgba(236, 226, 206, 0.8)", "center", 10);
     }
-    text(ctx, curved ? "range mm" : "depth mm", 4, 8, "rgba(236, 226, 206, 0.8)", "left", 10);
-    text(ctx, "elevation mm \u2192", M.left + plotW, 8, "rgba(236, 226, 206, 0.8)", "right", 10);
+    sideText(ctx, curved ? "range mm" : "depth mm", 4, 8, "rgba(236, 226, 206, 0.8)", "left", 10);
+    sideText(ctx, "elevation mm \u2192", M.left + plotW, 8, "rgba(236, 226, 206, 0.8)", "right", 10);
 
     const caption = stretch === 1 ? "True scale" : `Elevation stretched \u00d7${stretch} against depth`;
     if (captionEl && captionEl.textContent !== caption) captionEl.textContent = caption;

@@ -8,36 +8,11 @@ import { drawImageLayer, drawLayerGuides } from "./slice_image.js";
 import { wantedSize } from "./echo_image.js";
 import { needlePoint, toImage, add, scale } from "./frame_math.js";
 import { num, signedMm } from "./format.js";
+import { FONT, setupCanvas, rimmedText } from "./canvas.js";
 
 /** On-screen extent at or below which an in-slab stretch reads as a dot (crate constant). */
 const DOT_EXTENT_MM = 3.0;
-const FONT = "system-ui, -apple-system, 'Segoe UI', Roboto, sans-serif";
 const GOLDEN = Math.PI * (3 - Math.sqrt(5));
-
-function setupCanvas(canvas, w, h, dpr) {
-  const W = Math.max(1, Math.round(w * dpr));
-  const H = Math.max(1, Math.round(h * dpr));
-  if (canvas.width !== W || canvas.height !== H) {
-    canvas.width = W;
-    canvas.height = H;
-  }
-  const ctx = canvas.getContext("2d");
-  ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
-  return ctx;
-}
-
-/** Text with a dark rim so it reads over anything. */
-function label(ctx, text, x, y, colour, align = "left", size = 11) {
-  ctx.font = `${size}px ${FONT}`;
-  ctx.textAlign = align;
-  ctx.textBaseline = "middle";
-  ctx.lineJoin = "round";
-  ctx.lineWidth = 3;
-  ctx.strokeStyle = "rgba(0,0,0,0.8)";
-  ctx.strokeText(text, x, y);
-  ctx.fillStyle = colour;
-  ctx.fillText(text, x, y);
-}
 
 /**
  * Places labels so they do not overlap: each tries a few nudges up and down and is skipped
@@ -56,7 +31,7 @@ function makeLabeler(ctx, cssW, cssH) {
         const b = { x0: left - 2, y0: y + dy - size / 2 - 2, x1: left + w + 2, y1: y + dy + size / 2 + 2 };
         if (b.x0 < 0 || b.x1 > cssW || b.y0 < 0 || b.y1 > cssH || hits(b)) continue;
         boxes.push(b);
-        label(ctx, text, x, y + dy, colour, align, size);
+        rimmedText(ctx, text, x, y + dy, colour, align, size);
         return true;
       }
       return false;
@@ -579,11 +554,11 @@ function drawFrame(ctx, map, snap, cssW, cssH) {
   }
   ctx.stroke();
   for (let v = 0; v <= geom.depth_mm + 1e-9; v += labelStep) {
-    label(ctx, num(v, 0), xl - 10, map.y(v), COLOURS.frameText, "right", 11);
+    rimmedText(ctx, num(v, 0), xl - 10, map.y(v), COLOURS.frameText, "right", 11);
   }
   // The caption moves down a line when a mirrored screen puts the marker in its place.
   const markerLeft = map.flip && map.x(umax) < 70;
-  label(ctx, "depth mm", 6, markerY(map, vmin) + (markerLeft ? 14 : 0), COLOURS.frameText, "left", 10);
+  rimmedText(ctx, "depth mm", 6, markerY(map, vmin) + (markerLeft ? 14 : 0), COLOURS.frameText, "left", 10);
 
   // Lateral ruler under the field of view; + is the marker side.
   const yb = map.y(vmax) + 6;
@@ -597,11 +572,11 @@ function drawFrame(ctx, map, snap, cssW, cssH) {
     ctx.lineTo(map.x(u), yb + (major ? 6 : 3));
   }
   ctx.stroke();
-  label(ctx, "lateral mm", 6, yb + 15, COLOURS.frameText, "left", 10);
+  rimmedText(ctx, "lateral mm", 6, yb + 15, COLOURS.frameText, "left", 10);
   for (let u = Math.ceil(umin / latStep) * latStep; u <= umax + 1e-9; u += latStep) {
     const t = Math.abs(u) < 1e-9 ? "0" : (u > 0 ? "+" : "") + num(u, 0);
     if (map.x(u) < 80) continue; // keep clear of the caption
-    label(ctx, t, map.x(u), yb + 15, COLOURS.frameText, "center", 10);
+    rimmedText(ctx, t, map.x(u), yb + 15, COLOURS.frameText, "center", 10);
   }
 
   // Scale bar under the ruler, at the right end of the field of view.
@@ -622,7 +597,7 @@ function drawFrame(ctx, map, snap, cssW, cssH) {
   ctx.lineWidth = 2;
   ctx.strokeStyle = COLOURS.frameText;
   ctx.stroke();
-  label(ctx, `${barMm} mm`, xr - barPx - 7, yBar, COLOURS.frameText, "right", 11);
+  rimmedText(ctx, `${barMm} mm`, xr - barPx - 7, yBar, COLOURS.frameText, "right", 11);
   ctx.lineWidth = 1;
 
   // Orientation marker: the +lateral side of the probe.
@@ -632,8 +607,8 @@ function drawFrame(ctx, map, snap, cssW, cssH) {
   ctx.arc(mx, my, 5.5, 0, 2 * Math.PI);
   ctx.fillStyle = COLOURS.marker;
   ctx.fill();
-  label(ctx, "marker side", map.flip ? mx + 11 : mx - 11, my, COLOURS.marker, map.flip ? "left" : "right", 11);
-  if (map.flip) label(ctx, "screen mirrored", map.x(0), my, COLOURS.frameText, "center", 11);
+  rimmedText(ctx, "marker side", map.flip ? mx + 11 : mx - 11, my, COLOURS.marker, map.flip ? "left" : "right", 11);
+  if (map.flip) rimmedText(ctx, "screen mirrored", map.x(0), my, COLOURS.frameText, "center", 11);
 }
 
 function markerY(map, vmin) {

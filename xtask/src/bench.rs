@@ -31,9 +31,25 @@ pub(crate) fn run(args: &[String]) -> Result<(), String> {
     examples.sort();
     let mut native_echo = String::new();
     for ex in &examples {
-        exec(cargo().args(["build", "--quiet", "--release", "--package", "slicewise", "--example", ex]))?;
-        let out = output(cargo().args(["run", "--quiet", "--release", "--package", "slicewise", "--example", ex]))
-            .ok_or_else(|| format!("the {ex} benchmark failed"))?;
+        exec(cargo().args([
+            "build",
+            "--quiet",
+            "--release",
+            "--package",
+            "slicewise",
+            "--example",
+            ex,
+        ]))?;
+        let out = output(cargo().args([
+            "run",
+            "--quiet",
+            "--release",
+            "--package",
+            "slicewise",
+            "--example",
+            ex,
+        ]))
+        .ok_or_else(|| format!("the {ex} benchmark failed"))?;
         for line in out.lines() {
             // A machine-readable line for the wasm/native ratio; the rest is for people.
             match line.strip_prefix("NATIVE_ECHO_MS ") {

@@ -61,7 +61,11 @@ pub(crate) fn exp2_fast(x: f32) -> f32 {
     if x.is_nan() {
         return 0.0;
     }
-    let n = (x + 0.5).floor();
+    // floor(x + ½) through i32 (exact here, |x + ½| ≤ 126.5): std's `floor` is a library call
+    // on x86-64 without SSE4.1.
+    let y = x + 0.5;
+    let t = y as i32;
+    let n = if t as f32 > y { t - 1 } else { t } as f32;
     let f = x - n; // [−½, ½)
                    // Taylor of e^(f·ln2) to degree 6: error < 2e-8 on [−½, ½].
     let t = f * core::f32::consts::LN_2;
@@ -174,33 +178,175 @@ pub(crate) fn smooth(f: f32) -> f32 {
     f * f * (3.0 - 2.0 * f)
 }
 
-/// Value noise in 3D: hashed lattice values with smooth interpolation; in about [−1, 1].
-pub(crate) fn value_noise3(x: f64, y: f64, z: f64, seed: u32) -> f32 {
-    let (fx, fy, fz) = (libm::floor(x), libm::floor(y), libm::floor(z));
-    let (ix, iy, iz) = (fx as i32, fy as i32, fz as i32);
-    let (tx, ty, tz) = (
-        smooth((x - fx) as f32),
-        smooth((y - fy) as f32),
-        smooth((z - fz) as f32),
-    );
-    let v = |dx: i32, dy: i32, dz: i32| hash_value(hash3(ix + dx, iy + dy, iz + dz, seed));
-    let lerp = |a: f32, b: f32, t: f32| a + (b - a) * t;
-    let x00 = lerp(v(0, 0, 0), v(1, 0, 0), tx);
-    let x10 = lerp(v(0, 1, 0), v(1, 1, 0), tx);
-    let x01 = lerp(v(0, 0, 1), v(1, 0, 1), tx);
-    let x11 = lerp(v(0, 1, 1), v(1, 1, 1), tx);
-    lerp(lerp(x00, x10, ty), lerp(x01, x11, ty), tz)
+/// The larger of two numbers that are not NaN. A plain comparison: `f64::max` has to follow
+/// IEEE's NaN rules, which wasm32 compiles to several instructions — it costs in per-sample
+/// loops.
+#[inline]
+pub(crate) fn max_f64(a: f64, b: f64) -> f64 {
+    if a > b {
+        a
+    } else {
+        b
+    }
 }
 
-/// Value noise in 2D; in about [−1, 1].
-pub(crate) fn value_noise2(x: f64, y: f64, seed: u32) -> f32 {
-    let (fx, fy) = (libm::floor(x), libm::floor(y));
-    let (ix, iy) = (fx as i32, fy as i32);
-    let (tx, ty) = (smooth((x - fx) as f32), smooth((y - fy) as f32));
-    let v = |dx: i32, dy: i32| hash_value(hash3(ix + dx, iy + dy, 0, seed));
-    let a = v(0, 0) + (v(1, 0) - v(0, 0)) * tx;
-    let b = v(0, 1) + (v(1, 1) - v(0, 1)) * tx;
-    a + (b - a) * ty
+/// The smaller of two numbers that are not NaN (see [`max_f64`]).
+#[inline]
+pub(crate) fn min_f64(a: f64, b: f64) -> f64 {
+    if a < b {
+        a
+    } else {
+        b
+    }
+}
+
+/// The larger of two f32 that are not NaN (see [`max_f64`]).
+#[inline]
+pub(crate) fn max_f32(a: f32, b: f32) -> f32 {
+    if a > b {
+        a
+    } else {
+        b
+    }
+}
+
+/// Largest integer not above `x`, for finite |x| < 2⁵²: exact, from a truncating conversion
+/// (cheaper than libm's bit-by-bit `floor` on targets without a rounding instruction). Other
+/// inputs are returned as they are (they are integers already, or not numbers).
+#[inline]
+pub(crate) fn floor_f64(x: f64) -> f64 {
+    if x.is_nan() || x.abs() >= 4_503_599_627_370_496.0 {
+        return x;
+    }
+    let t = x as i64 as f64;
+    if t > x {
+        t - 1.0
+    } else {
+        t
+    }
+}
+
+/// Value noise in 3D — hashed lattice values with smooth interpolation, in about [−1, 1] —
+/// read at many nearby points in turn: the eight lattice values of the last cell are kept, so
+/// the next point in the same cell skips the hashing.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Noise3 {
+    seed: u32,
+    cell: Option<(i32, i32, i32)>,
+    /// Lattice values at the cell's corners, index dx + 2·dy + 4·dz.
+    corner: [f32; 8],
+}
+
+impl Noise3 {
+    /// A reader of the noise with this seed.
+    pub(crate) fn new(seed: u32) -> Self {
+        Noise3 {
+            seed,
+            cell: None,
+            corner: [0.0; 8],
+        }
+    }
+
+    /// The noise at lattice coordinates (x, y, z).
+    #[inline]
+    pub(crate) fn at(&mut self, x: f64, y: f64, z: f64) -> f32 {
+        let (fx, fy, fz) = (floor_f64(x), floor_f64(y), floor_f64(z));
+        let cell = (fx as i32, fy as i32, fz as i32);
+        if self.cell != Some(cell) {
+            // A step to a neighbouring cell shares a face with the last one: those lattice
+            // values are taken over, the others hashed.
+            let old = self.corner;
+            let last = self.cell;
+            let (ix, iy, iz) = cell;
+            for (k, c) in self.corner.iter_mut().enumerate() {
+                let (x, y, z) = (
+                    ix + (k & 1) as i32,
+                    iy + ((k >> 1) & 1) as i32,
+                    iz + (k >> 2) as i32,
+                );
+                *c = match last {
+                    Some((lx, ly, lz)) => {
+                        let (rx, ry, rz) =
+                            (x.wrapping_sub(lx), y.wrapping_sub(ly), z.wrapping_sub(lz));
+                        if (rx | ry | rz) as u32 <= 1 {
+                            old[(rx + 2 * ry + 4 * rz) as usize]
+                        } else {
+                            hash_value(hash3(x, y, z, self.seed))
+                        }
+                    }
+                    None => hash_value(hash3(x, y, z, self.seed)),
+                };
+            }
+            self.cell = Some(cell);
+        }
+        let (tx, ty, tz) = (
+            smooth((x - fx) as f32),
+            smooth((y - fy) as f32),
+            smooth((z - fz) as f32),
+        );
+        let v = &self.corner;
+        let lerp = |a: f32, b: f32, t: f32| a + (b - a) * t;
+        let x00 = lerp(v[0], v[1], tx);
+        let x10 = lerp(v[2], v[3], tx);
+        let x01 = lerp(v[4], v[5], tx);
+        let x11 = lerp(v[6], v[7], tx);
+        lerp(lerp(x00, x10, ty), lerp(x01, x11, ty), tz)
+    }
+}
+
+/// Value noise in 2D, in about [−1, 1], read at many nearby points in turn, keeping the last
+/// cell's four lattice values.
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct Noise2 {
+    seed: u32,
+    cell: Option<(i32, i32)>,
+    /// Lattice values at the cell's corners, index dx + 2·dy.
+    corner: [f32; 4],
+}
+
+impl Noise2 {
+    /// A reader of the noise with this seed.
+    pub(crate) fn new(seed: u32) -> Self {
+        Noise2 {
+            seed,
+            cell: None,
+            corner: [0.0; 4],
+        }
+    }
+
+    /// The noise at lattice coordinates (x, y).
+    #[inline]
+    pub(crate) fn at(&mut self, x: f64, y: f64) -> f32 {
+        let (fx, fy) = (floor_f64(x), floor_f64(y));
+        let cell = (fx as i32, fy as i32);
+        if self.cell != Some(cell) {
+            // A step to a neighbouring cell shares an edge with the last one: those lattice
+            // values are taken over, the others hashed.
+            let old = self.corner;
+            let last = self.cell;
+            let (ix, iy) = cell;
+            for (k, c) in self.corner.iter_mut().enumerate() {
+                let (x, y) = (ix + (k & 1) as i32, iy + (k >> 1) as i32);
+                *c = match last {
+                    Some((lx, ly)) => {
+                        let (rx, ry) = (x.wrapping_sub(lx), y.wrapping_sub(ly));
+                        if (rx | ry) as u32 <= 1 {
+                            old[(rx + 2 * ry) as usize]
+                        } else {
+                            hash_value(hash3(x, y, 0, self.seed))
+                        }
+                    }
+                    None => hash_value(hash3(x, y, 0, self.seed)),
+                };
+            }
+            self.cell = Some(cell);
+        }
+        let (tx, ty) = (smooth((x - fx) as f32), smooth((y - fy) as f32));
+        let v = &self.corner;
+        let a = v[0] + (v[1] - v[0]) * tx;
+        let b = v[2] + (v[3] - v[2]) * tx;
+        a + (b - a) * ty
+    }
 }
 
 #[cfg(test)]

@@ -7,8 +7,10 @@
 //! `structures` (elevation share of nerves, vessels, bone, fluid), `attenuation` (losses and
 //! automatic time-gain), `needle_echo` (specular shaft, reverberation, bevel), `doppler`
 //! (shift, aliasing, palettes, frame rate), `display_chain` (gain, time-gain bands, log
-//! compression, grey levels), `render` (the renderer), `posed` and `math` (the scene in the
-//! image frame and deterministic numerics).
+//! compression, grey levels), `render` (the renderer), `echo_line` (its per-line passes
+//! without the needle), `scene_echo` (that needle-free echo, kept between frames), `compose`
+//! (levels to screen pixels), `posed` and `math` (the scene in the image frame and
+//! deterministic numerics).
 //!
 //! **Determinism.** Every transcendental function here is `libm`'s (or a polynomial of IEEE
 //! basic operations), speckle comes from integer hashing of tissue coordinates, and nothing
@@ -20,13 +22,16 @@
 //! Pure computation: no web-sys, no wasm-bindgen.
 
 mod attenuation;
+mod compose;
 mod display_chain;
 mod doppler;
+mod echo_line;
 mod math;
 mod needle_echo;
 mod posed;
 mod render;
 mod scan;
+mod scene_echo;
 mod speckle;
 mod structures;
 mod tissue;

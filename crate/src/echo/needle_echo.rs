@@ -267,6 +267,11 @@ impl NeedleLine {
             let xa = qa - s * self.da;
             let xe = self.e0 + s * self.de;
             let j = xl * xl * wl + xa * xa * wa + xe * xe * we;
+            // Beyond j = 60 the weight is below e⁻³⁰, its square 10⁻²⁶ of the shaft's peak:
+            // far under anything the display shows (the point echoes below stop there too).
+            if j > 60.0 {
+                return 0.0;
+            }
             exp_fast((-0.5 * j) as f32)
         };
         let w = eval(qa);

@@ -48,6 +48,8 @@ pub(crate) struct ScanGeometry {
     pub(crate) half_sin_cos: (f64, f64),
     /// Scan-conversion taps, one per screen pixel (row-major), for a curved face.
     pub(crate) convert: Option<Vec<ConvertTap>>,
+    /// Radius of a curved face and the display depth, mm (`None` for a linear face).
+    sector: Option<(f64, f64)>,
     key: (u8, u64, u64, u64, usize, usize),
 }
 
@@ -103,6 +105,7 @@ impl ScanGeometry {
                     line_dir: vec![[0.0, 1.0]; width],
                     half_sin_cos: (0.0, 1.0),
                     convert: None,
+                    sector: None,
                     key,
                 }
             }
@@ -177,15 +180,100 @@ impl ScanGeometry {
                     line_dir,
                     half_sin_cos: (sh, ch),
                     convert: Some(taps),
+                    sector: Some((r, depth_mm)),
                     key,
                 }
             }
         }
     }
 
+    /// Whether image point (u, v) (mm) lies within `margin_mm` of the field of view: the
+    /// sector between its arcs and straight edges for a curved face, everywhere for a linear
+    /// one. (The reference for [`Self::view_span`], checked in the tests.)
+    #[cfg(test)]
+    pub(crate) fn in_view(&self, u: f64, v: f64, margin_mm: f64) -> bool {
+        let Some((radius, depth)) = self.sector else {
+            return true;
+        };
+        let y = v + radius;
+        let rho = (u * u + y * y).sqrt();
+        if rho > radius + depth + margin_mm || rho < radius - margin_mm {
+            return false;
+        }
+        // Distance outside the sector's straight edges.
+        let (sh, ch) = self.half_sin_cos;
+        u * ch - y * sh <= margin_mm && -u * ch - y * sh <= margin_mm
+    }
+
+    /// The depths v (mm) of the points at lateral position u (mm) that [`Self::in_view`]
+    /// accepts, as one interval [lo, hi] that holds them all (a hair wider: it is for skipping
+    /// work on points that are never read, not for drawing).
+    pub(crate) fn view_span(&self, u: f64, margin_mm: f64) -> (f64, f64) {
+        let Some((radius, depth)) = self.sector else {
+            return (f64::NEG_INFINITY, f64::INFINITY);
+        };
+        let (sh, ch) = self.half_sin_cos;
+        // Points behind the apex (y = v + R < 0) can only be in view for a face so small that
+        // the margin reaches round the apex; then take every depth.
+        if sh <= 0.0 || ch <= 0.0 || radius - margin_mm <= margin_mm * (1.0 / sh + 1.0 / ch) {
+            return (f64::NEG_INFINITY, f64::INFINITY);
+        }
+        let outer = radius + depth + margin_mm;
+        let inner = radius - margin_mm;
+        if u.abs() > outer {
+            return (f64::INFINITY, f64::NEG_INFINITY);
+        }
+        // y ≥ 0 here: below the edges (|u|·cos − y·sin ≤ margin), outside the inner arc and
+        // inside the outer one.
+        let y_edges = (u.abs() * ch - margin_mm) / sh;
+        let y_inner = (inner * inner - u * u).max(0.0).sqrt();
+        let y_outer = (outer * outer - u * u).sqrt();
+        let slack = 1e-9 * outer;
+        (
+            y_edges.max(y_inner) - radius - slack,
+            y_outer - radius + slack,
+        )
+    }
+
     /// Range of sample i, mm.
     #[inline]
     pub(crate) fn range_of(&self, i: usize) -> f64 {
         (i as f64 + 0.5) * self.dr
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The per-column span holds every point the exact test accepts, for narrow and wide
+    /// sectors, small and large faces.
+    #[test]
+    fn view_span_holds_the_field_of_view() {
+        for (width_mm, radius_mm, depth_mm) in [
+            (60.0, 50.0, 90.0),
+            (20.0, 10.0, 40.0),
+            (150.0, 40.0, 120.0),
+            (8.0, 3.0, 30.0),
+        ] {
+            let footprint = Footprint::Curved {
+                width_mm,
+                radius_mm,
+            };
+            let geo = ScanGeometry::new(&footprint, depth_mm, 200, 160);
+            for margin in [0.5, 2.0, 4.0] {
+                for k in 0..400 {
+                    let u = geo.u0 - 5.0 + k as f64 * (geo.sx * geo.width as f64 + 10.0) / 400.0;
+                    let (lo, hi) = geo.view_span(u, margin);
+                    for m in 0..400 {
+                        let v =
+                            geo.v0 - 5.0 + m as f64 * (geo.sy * geo.height as f64 + 10.0) / 400.0;
+                        if geo.in_view(u, v, margin) {
+                            assert!(v >= lo && v <= hi, "({u}, {v}) outside [{lo}, {hi}]");
+                        }
+                    }
+                }
+            }
+        }
     }
 }

@@ -19,7 +19,7 @@
 //! (taken along world y, the limb's long axis in the demo scenes) peaks — dots and short
 //! streaks in cross-section, long parallel striations in long axis.
 
-use super::math::{hash3, hash_value, smooth, value_noise2, value_noise3};
+use super::math::{hash3, hash_value, smooth, Noise2, Noise3};
 use super::posed::{dot, Axes};
 
 const SEED_I: u32 = 0x51ce_0001;
@@ -54,7 +54,9 @@ pub(crate) struct SpeckleField {
 }
 
 impl SpeckleField {
-    /// Fill the lattice covering image u ∈ [u_min, u_max], v ∈ [v_min, v_max] for this frame.
+    /// Fill the lattice covering image u ∈ [u_min, u_max], v ∈ [v_min, v_max] (mm) for this
+    /// frame. `view(u)` gives the depths [v_lo, v_hi] (mm) that can be read at lateral position
+    /// u; lattice points outside it are left at zero.
     #[allow(clippy::too_many_arguments)]
     pub(crate) fn fill(
         &mut self,
@@ -64,7 +66,7 @@ impl SpeckleField {
         cell_e: f64,
         u_range: (f64, f64),
         v_range: (f64, f64),
-        in_view: &dyn Fn(f64, f64) -> bool,
+        view: &dyn Fn(f64) -> (f64, f64),
     ) {
         // World point · axis = origin · axis + image coordinate (orthonormal axes).
         let ca = dot(axes.origin, axes.lateral);
@@ -89,29 +91,38 @@ impl SpeckleField {
             (&mut self.values, (SEED_I, SEED_Q)),
             (&mut self.values_b, (SEED_I2, SEED_Q2)),
         ] {
-            values.clear();
-            values.reserve(self.nx * self.ny * 2);
-            for ix in 0..self.nx as i32 {
+            values.resize(self.nx * self.ny * 2, 0.0);
+            for (ix, column) in (0i32..).zip(values.chunks_exact_mut(self.ny * 2)) {
                 let u = (x_min + ix as f64) * cell_u - ca;
-                for iy in 0..self.ny as i32 {
-                    let (x, y) = (ix0 + ix, iy0 + iy);
-                    let v = (y_min + iy as f64) * cell_v - cb;
-                    if !in_view(u, v) {
-                        values.push(0.0);
-                        values.push(0.0);
-                        continue;
-                    }
+                // Points outside the view are never read: zeros. The rest is one run, hashed
+                // in a loop without branches.
+                let (a, b) = span_in(self.ny, view(u), |iy| (y_min + iy as f64) * cell_v - cb);
+                column[..2 * a].fill(0.0);
+                column[2 * b..].fill(0.0);
+                let x = ix0 + ix;
+                for (y, slot) in (iy0 + a as i32..).zip(column[2 * a..2 * b].chunks_exact_mut(2)) {
                     let i0 = hash_value(hash3(x, y, iz, seeds.0));
                     let i1 = hash_value(hash3(x, y, iz + 1, seeds.0));
                     let q0 = hash_value(hash3(x, y, iz, seeds.1));
                     let q1 = hash_value(hash3(x, y, iz + 1, seeds.1));
-                    values.push(i0 + (i1 - i0) * tz);
-                    values.push(q0 + (q1 - q0) * tz);
+                    slot.copy_from_slice(&[i0 + (i1 - i0) * tz, q0 + (q1 - q0) * tz]);
                 }
             }
         }
         let ez = (1.0 - tz) * (1.0 - tz) + tz * tz;
         self.norm = 1.0 / (SPECKLE_MEAN_PLANAR * ez);
+    }
+
+    /// Highest lattice x coordinate read (just inside the last cell).
+    #[inline]
+    fn last_x(&self) -> f32 {
+        (self.nx - 1) as f32 - 0.001
+    }
+
+    /// Highest lattice y coordinate read (just inside the last cell).
+    #[inline]
+    fn last_y(&self) -> f32 {
+        (self.ny - 1) as f32 - 0.001
     }
 
     /// Lattice x coordinate (grid units) of lateral position u, mm.
@@ -126,26 +137,45 @@ impl SpeckleField {
         (v / self.cell_v + self.off_y) as f32
     }
 
-    /// Speckle intensity factor (mean 1) at lattice coordinates (gx, gy).
-    #[inline]
+    /// Speckle intensity factor (mean 1) at lattice coordinates (gx, gy) (the tests read
+    /// single points; the renderer reads whole lines).
+    #[cfg(test)]
     pub(crate) fn at(&self, gx: f32, gy: f32) -> f32 {
-        let (ia, qa) = self.iq(&self.values, gx, gy);
-        let (ib, qb) = self.iq(&self.values_b, gx + 0.5, gy + 0.5);
-        let i = ia + ib;
-        let q = qa + qb;
+        let last = (self.last_x(), self.last_y());
+        let row = self.ny * 2;
+        let (ia, qa) = bilinear_iq(&self.values, row, gx, gy, last);
+        let (ib, qb) = bilinear_iq(&self.values_b, row, gx + 0.5, gy + 0.5, last);
+        let (i, q) = (ia + ib, qa + qb);
         // Each sum has twice the variance of one lattice.
         (i * i + q * q) * (0.5 * self.norm)
+    }
+
+    /// Speckle intensity factor at every sample of an oblique line from image point `o` (mm)
+    /// along unit direction `b`, sample i at range (i + ½)·`dr` mm, one per slot of `out`:
+    /// each sample's two lattice lookups in one tight loop.
+    pub(crate) fn along_line(&self, o: [f64; 2], b: [f64; 2], dr: f64, out: &mut [f32]) {
+        let last = (self.last_x(), self.last_y());
+        let row = self.ny * 2;
+        let scale = 0.5 * self.norm;
+        let (va, vb) = (&self.values[..], &self.values_b[..]);
+        for (i, slot) in out.iter_mut().enumerate() {
+            let r = (i as f64 + 0.5) * dr;
+            let gx = ((o[0] + b[0] * r) / self.cell_u + self.off_x) as f32;
+            let gy = ((o[1] + b[1] * r) / self.cell_v + self.off_y) as f32;
+            let (ia, qa) = bilinear_iq(va, row, gx, gy, last);
+            let (ib, qb) = bilinear_iq(vb, row, gx + 0.5, gy + 0.5, last);
+            let (si, sq) = (ia + ib, qa + qb);
+            *slot = (si * si + sq * sq) * scale;
+        }
     }
 
     /// Interpolate both lattices across x at `gx` for every y: a column that a straight line
     /// of constant lateral position reads with [`SpeckleField::at_column`].
     pub(crate) fn column(&self, gx: f32, out: &mut Vec<[f32; 4]>) {
-        out.clear();
         let n = self.ny * 2;
-        let last = (self.nx - 1) as f32 - 0.001;
-        let (ga, gb) = (gx.clamp(0.0, last), (gx + 0.5).clamp(0.0, last));
-        let (ia, ib) = (ga as usize, gb as usize);
-        let (ta, tb) = (smooth(ga - ia as f32), smooth(gb - ib as f32));
+        let last = self.last_x();
+        let ((ia, ta), (ib, tb)) = (cell_of(gx, last), cell_of(gx + 0.5, last));
+        let (ta, tb) = (smooth(ta), smooth(tb));
         let (a0, a1) = (
             &self.values[ia * n..(ia + 1) * n],
             &self.values[(ia + 1) * n..(ia + 2) * n],
@@ -154,28 +184,30 @@ impl SpeckleField {
             &self.values_b[ib * n..(ib + 1) * n],
             &self.values_b[(ib + 1) * n..(ib + 2) * n],
         );
-        for (((p, q), r), s) in a0
-            .chunks_exact(2)
+        out.resize(self.ny, [0.0; 4]);
+        for ((((slot, p), q), r), s) in out
+            .iter_mut()
+            .zip(a0.chunks_exact(2))
             .zip(a1.chunks_exact(2))
             .zip(b0.chunks_exact(2))
             .zip(b1.chunks_exact(2))
         {
-            out.push([
+            *slot = [
                 lerp(p[0], q[0], ta),
                 lerp(p[1], q[1], ta),
                 lerp(r[0], s[0], tb),
                 lerp(r[1], s[1], tb),
-            ]);
+            ];
         }
     }
 
     /// Where a depth (lattice y coordinate) reads a column: (row, weight) for each lattice.
     #[inline]
     pub(crate) fn column_tap(&self, gy: f32) -> (u32, f32, u32, f32) {
+        let last = self.last_y();
         let tap = |gy: f32| {
-            let gy = gy.clamp(0.0, (self.ny - 1) as f32 - 0.001);
-            let iy = gy as usize;
-            (iy as u32, smooth(gy - iy as f32))
+            let (iy, t) = cell_of(gy, last);
+            (iy as u32, smooth(t))
         };
         let (a, ta) = tap(gy);
         let (b, tb) = tap(gy + 0.5);
@@ -186,33 +218,63 @@ impl SpeckleField {
     #[inline]
     pub(crate) fn at_column(&self, col: &[[f32; 4]], tap: (u32, f32, u32, f32)) -> f32 {
         let (a, ta, b, tb) = (tap.0 as usize, tap.1, tap.2 as usize, tap.3);
-        let (ca0, ca1) = (col[a], col[a + 1]);
-        let (cb0, cb1) = (col[b], col[b + 1]);
-        let i = lerp(ca0[0], ca1[0], ta) + lerp(cb0[2], cb1[2], tb);
-        let q = lerp(ca0[1], ca1[1], ta) + lerp(cb0[3], cb1[3], tb);
+        // Two-row windows: one bounds check each.
+        let (ca, cb) = (&col[a..a + 2], &col[b..b + 2]);
+        let i = lerp(ca[0][0], ca[1][0], ta) + lerp(cb[0][2], cb[1][2], tb);
+        let q = lerp(ca[0][1], ca[1][1], ta) + lerp(cb[0][3], cb[1][3], tb);
         (i * i + q * q) * (0.5 * self.norm)
     }
+}
 
-    #[inline]
-    fn iq(&self, v: &[f32], gx: f32, gy: f32) -> (f32, f32) {
-        let gx = gx.clamp(0.0, (self.nx - 1) as f32 - 0.001);
-        let gy = gy.clamp(0.0, (self.ny - 1) as f32 - 0.001);
-        let ix = gx as usize;
-        let iy = gy as usize;
-        let tx = smooth(gx - ix as f32);
-        let ty = smooth(gy - iy as f32);
-        let b = (ix * self.ny + iy) * 2;
-        let r = self.ny * 2;
-        // Two 4-value windows (this row and the next): one bounds check each.
-        let (near, far) = (&v[b..b + 4], &v[b + r..b + r + 4]);
-        let (near, far) = (
-            [near[0], near[1], near[2], near[3]],
-            [far[0], far[1], far[2], far[3]],
-        );
-        let i = lerp(lerp(near[0], near[2], ty), lerp(far[0], far[2], ty), tx);
-        let q = lerp(lerp(near[1], near[3], ty), lerp(far[1], far[3], ty), tx);
-        (i, q)
+/// Smooth bilinear (I, Q) of an interleaved lattice with `row` values per x column, at lattice
+/// coordinates (gx, gy) held within the lattice (last cells `last`).
+#[inline(always)]
+fn bilinear_iq(v: &[f32], row: usize, gx: f32, gy: f32, last: (f32, f32)) -> (f32, f32) {
+    let (ix, tx) = cell_of(gx, last.0);
+    let (iy, ty) = cell_of(gy, last.1);
+    let (tx, ty) = (smooth(tx), smooth(ty));
+    let b = ix * row + iy * 2;
+    // One window over this column's pair of points and the next column's: one bounds check.
+    let w = &v[b..b + row + 4];
+    let (near, far) = (&w[..4], &w[row..]);
+    let i = lerp(lerp(near[0], near[2], ty), lerp(far[0], far[2], ty), tx);
+    let q = lerp(lerp(near[1], near[3], ty), lerp(far[1], far[3], ty), tx);
+    (i, q)
+}
+
+/// The run a..b of the `n` points of a grid column whose depths `v_at(i)` (increasing with i)
+/// lie in `span` = [lo, hi].
+fn span_in(n: usize, span: (f64, f64), v_at: impl Fn(usize) -> f64) -> (usize, usize) {
+    let (lo, hi) = span;
+    let a = first_where(0, n, |i| v_at(i) >= lo);
+    let b = first_where(a, n, |i| v_at(i) > hi);
+    (a, b)
+}
+
+/// The first i in from..to where `test` holds (`to` if none), for a test that, once true,
+/// stays true as i grows: a binary search.
+fn first_where(from: usize, to: usize, test: impl Fn(usize) -> bool) -> usize {
+    let (mut lo, mut hi) = (from, to);
+    while lo < hi {
+        let mid = lo + (hi - lo) / 2;
+        if test(mid) {
+            hi = mid;
+        } else {
+            lo = mid + 1;
+        }
     }
+    lo
+}
+
+/// A lattice coordinate held within [0, `last`] split into its cell and the offset in that
+/// cell (0..1); NaN goes to cell 0. The cell is found through i32, whose conversion to f32 is
+/// one instruction (usize's is not, on x86-64).
+#[inline(always)]
+fn cell_of(g: f32, last: f32) -> (usize, f32) {
+    let g = if g > 0.0 { g } else { 0.0 };
+    let g = if g < last { g } else { last };
+    let i = g as i32;
+    (i as usize, g - i as f32)
 }
 
 #[inline]
@@ -228,17 +290,23 @@ struct Grid<const C: usize> {
     step: f64,
     nx: usize,
     ny: usize,
+    /// Highest grid coordinates read, x and y (just inside the last cells).
+    last: (f32, f32),
     /// C channels per point, index (ix·ny + iy)·C.
     values: Vec<f32>,
 }
 
 impl<const C: usize> Grid<C> {
+    /// Cover the image rectangle (mm) with points `step_mm` apart, one cell beyond it on each
+    /// side, and store `eval(u, v, world point)` at each; points outside `view(u)` (depths,
+    /// mm) get zeros without being evaluated.
     fn fill(
         &mut self,
         axes: &Axes,
         u_range: (f64, f64),
         v_range: (f64, f64),
         step_mm: f64,
+        view: &dyn Fn(f64) -> (f64, f64),
         mut eval: impl FnMut(f64, f64, [f64; 3]) -> [f32; C],
     ) {
         self.step = step_mm;
@@ -246,14 +314,18 @@ impl<const C: usize> Grid<C> {
         self.v_min = v_range.0 - step_mm;
         self.nx = (libm::ceil((u_range.1 - u_range.0) / step_mm) as usize + 3).max(2);
         self.ny = (libm::ceil((v_range.1 - v_range.0) / step_mm) as usize + 3).max(2);
-        self.values.clear();
-        self.values.reserve(self.nx * self.ny * C);
-        for ix in 0..self.nx {
+        self.last = ((self.nx - 1) as f32 - 0.001, (self.ny - 1) as f32 - 0.001);
+        self.values.resize(self.nx * self.ny * C, 0.0);
+        for (ix, column) in self.values.chunks_exact_mut(self.ny * C).enumerate() {
             let u = self.u_min + ix as f64 * step_mm;
-            for iy in 0..self.ny {
-                let v = self.v_min + iy as f64 * step_mm;
-                self.values
-                    .extend_from_slice(&eval(u, v, axes.to_world(u, v, 0.0)));
+            // Points outside the view are never read: zeros, without evaluating them.
+            let v_at = |iy: usize| self.v_min + iy as f64 * step_mm;
+            let (a, b) = span_in(self.ny, view(u), v_at);
+            column[..C * a].fill(0.0);
+            column[C * b..].fill(0.0);
+            for (iy, slot) in (a..).zip(column[C * a..C * b].chunks_exact_mut(C)) {
+                let v = v_at(iy);
+                slot.copy_from_slice(&eval(u, v, axes.to_world(u, v, 0.0)));
             }
         }
     }
@@ -281,24 +353,36 @@ impl<const C: usize> Grid<C> {
 
     #[inline(always)]
     fn at_grid(&self, gx: f32, gy: f32) -> [f32; C] {
-        let gx = gx.clamp(0.0, (self.nx - 1) as f32 - 0.001);
-        let gy = gy.clamp(0.0, (self.ny - 1) as f32 - 0.001);
-        let ix = gx as usize;
-        let iy = gy as usize;
-        let tx = gx - ix as f32;
-        let ty = gy - iy as f32;
+        let mut out = [0.0; C];
+        self.channels_at_grid(gx, gy, core::array::from_fn::<usize, C, _>(|k| k), &mut out);
+        out
+    }
+
+    /// Bilinear value of the listed channels only, at grid coordinates (gx, gy), into the
+    /// same places of `out`.
+    #[inline(always)]
+    fn channels_at_grid<const K: usize>(
+        &self,
+        gx: f32,
+        gy: f32,
+        channels: [usize; K],
+        out: &mut [f32; C],
+    ) {
+        let (ix, tx) = cell_of(gx, self.last.0);
+        let (iy, ty) = cell_of(gy, self.last.1);
         let b = (ix * self.ny + iy) * C;
         let r = self.ny * C;
-        let v = &self.values[b..b + r + 2 * C];
-        let mut out = [0.0; C];
-        for (k, o) in out.iter_mut().enumerate() {
-            *o = lerp(
-                lerp(v[k], v[C + k], ty),
-                lerp(v[r + k], v[r + C + k], ty),
+        // This point and the next along y, in this column and the next along x: one window,
+        // one bounds check.
+        let w = &self.values[b..b + r + 2 * C];
+        let (near, far) = (&w[..2 * C], &w[r..]);
+        for k in channels {
+            out[k] = lerp(
+                lerp(near[k], near[C + k], ty),
+                lerp(far[k], far[C + k], ty),
                 tx,
             );
         }
-        out
     }
 }
 
@@ -332,7 +416,8 @@ fn near_any(ranges: &[(f64, f64)], z: f64, margin: f64) -> bool {
 
 impl TextureField {
     /// Fill the grids over the image rectangle; fat noise only within `fat_z` depth ranges,
-    /// muscle only within `muscle_z` (world mm).
+    /// muscle only within `muscle_z` (world mm); fine-grid points outside `view(u)` (the
+    /// depths, mm, that can be read at lateral position u) are left at zero.
     #[allow(clippy::too_many_arguments)]
     pub(crate) fn fill(
         &mut self,
@@ -342,58 +427,54 @@ impl TextureField {
         step_mm: f64,
         fat_z: &[(f64, f64)],
         muscle_z: &[(f64, f64)],
-        in_view: &dyn Fn(f64, f64) -> bool,
+        view: &dyn Fn(f64) -> (f64, f64),
     ) {
         let margin = 2.0 * step_mm + 1.0;
+        // Neighbouring grid points mostly fall in the same noise cell: each reader keeps its
+        // last cell's lattice values.
+        let (mut bundle, mut wave) = (Noise3::new(SEED_BUNDLE), Noise3::new(SEED_WAVE));
         self.coarse.fill(
             axes,
             u_range,
             v_range,
             (4.0 * step_mm).max(1.0),
+            &|_| (f64::NEG_INFINITY, f64::INFINITY),
             |_, _, p| {
                 [
-                    value_noise3(
+                    bundle.at(
                         p[0] / BUNDLE_CELL_MM[0],
                         p[1] / BUNDLE_CELL_MM[1],
                         p[2] / BUNDLE_CELL_MM[2],
-                        SEED_BUNDLE,
                     ),
-                    value_noise3(
+                    wave.at(
                         p[0] / WAVE_CELL_MM[0],
                         p[1] / WAVE_CELL_MM[1],
                         p[2] / WAVE_CELL_MM[2],
-                        SEED_WAVE,
                     ),
                 ]
             },
         );
         let coarse = &self.coarse;
-        self.fine.fill(axes, u_range, v_range, step_mm, |u, v, p| {
-            if !in_view(u, v) {
-                return [0.0; 4];
-            }
-            let fat = if near_any(fat_z, p[2], margin) {
-                value_noise3(
-                    p[0] / FAT_CELL_MM[0],
-                    p[1] / FAT_CELL_MM[1],
-                    p[2] / FAT_CELL_MM[2],
-                    SEED_FAT,
-                )
-            } else {
-                0.0
-            };
-            let mus = if near_any(muscle_z, p[2], margin) {
-                value_noise2(
-                    p[0] / MUSCLE_CELL_MM[0],
-                    p[2] / MUSCLE_CELL_MM[1],
-                    SEED_MUSCLE,
-                )
-            } else {
-                0.0
-            };
-            let [bundle, wave] = coarse.at(u, v);
-            [fat, mus, bundle, wave]
-        });
+        let (mut fat_noise, mut muscle_noise) = (Noise3::new(SEED_FAT), Noise2::new(SEED_MUSCLE));
+        self.fine
+            .fill(axes, u_range, v_range, step_mm, view, |u, v, p| {
+                let fat = if near_any(fat_z, p[2], margin) {
+                    fat_noise.at(
+                        p[0] / FAT_CELL_MM[0],
+                        p[1] / FAT_CELL_MM[1],
+                        p[2] / FAT_CELL_MM[2],
+                    )
+                } else {
+                    0.0
+                };
+                let mus = if near_any(muscle_z, p[2], margin) {
+                    muscle_noise.at(p[0] / MUSCLE_CELL_MM[0], p[2] / MUSCLE_CELL_MM[1])
+                } else {
+                    0.0
+                };
+                let [bundle, wave] = coarse.at(u, v);
+                [fat, mus, bundle, wave]
+            });
     }
 
     /// Grid coordinates along a straight line from `o` in unit direction `b`.
@@ -411,25 +492,50 @@ impl TextureField {
             .at_grid((f[0] + f[1] * r) as f32, (f[2] + f[3] * r) as f32)
     }
 
+    /// The listed channels of the (fat, muscle, bundle, wave) noise at samples `first`,
+    /// `first` + 1, … of a line, sample i at range (i + ½)·`dr` mm, into the same places of
+    /// each slot of `out` (the values of [`TextureField::at`]; the other channels are left).
+    pub(crate) fn along_line<const K: usize>(
+        &self,
+        line: &TextureLine,
+        dr: f64,
+        first: usize,
+        channels: [usize; K],
+        out: &mut [[f32; 4]],
+    ) {
+        let f = &line.fine;
+        for (q, slot) in out.iter_mut().enumerate() {
+            let r = ((first + q) as f64 + 0.5) * dr;
+            self.fine.channels_at_grid(
+                (f[0] + f[1] * r) as f32,
+                (f[2] + f[3] * r) as f32,
+                channels,
+                slot,
+            );
+        }
+    }
+
     /// For a line straight down (constant lateral position): the grid interpolated across x at
     /// the line, one entry per grid row; read with [`TextureField::at_column`].
     pub(crate) fn column(&self, line: &TextureLine, out: &mut Vec<[f32; 4]>) {
         let g = &self.fine;
-        out.clear();
-        let gx = (line.fine[0] as f32).clamp(0.0, (g.nx - 1) as f32 - 0.001);
-        let ix = gx as usize;
-        let tx = gx - ix as f32;
+        let (ix, tx) = cell_of(line.fine[0] as f32, g.last.0);
         let (left, right) = (
             &g.values[ix * g.ny * 4..(ix + 1) * g.ny * 4],
             &g.values[(ix + 1) * g.ny * 4..(ix + 2) * g.ny * 4],
         );
-        for (a, b) in left.chunks_exact(4).zip(right.chunks_exact(4)) {
-            out.push([
+        out.resize(g.ny, [0.0; 4]);
+        for ((slot, a), b) in out
+            .iter_mut()
+            .zip(left.chunks_exact(4))
+            .zip(right.chunks_exact(4))
+        {
+            *slot = [
                 lerp(a[0], b[0], tx),
                 lerp(a[1], b[1], tx),
                 lerp(a[2], b[2], tx),
                 lerp(a[3], b[3], tx),
-            ]);
+            ];
         }
     }
 
@@ -437,30 +543,31 @@ impl TextureField {
     #[inline]
     pub(crate) fn column_tap(&self, line: &TextureLine, r: f64) -> (u32, f32) {
         let g = &self.fine;
-        let gy = ((line.fine[2] + line.fine[3] * r) as f32).clamp(0.0, (g.ny - 1) as f32 - 0.001);
-        let iy = gy as usize;
-        (iy as u32, gy - iy as f32)
+        let (iy, t) = cell_of((line.fine[2] + line.fine[3] * r) as f32, g.last.1);
+        (iy as u32, t)
     }
 
-    /// (fat, muscle, bundle, wave) noise from a column.
+    /// The listed channels of the (fat, muscle, bundle, wave) noise from a column, into the
+    /// same places of `out`.
     #[inline(always)]
-    pub(crate) fn at_column(col: &[[f32; 4]], tap: (u32, f32)) -> [f32; 4] {
+    pub(crate) fn at_column<const K: usize>(
+        col: &[[f32; 4]],
+        tap: (u32, f32),
+        channels: [usize; K],
+        out: &mut [f32; 4],
+    ) {
         let i = tap.0 as usize;
-        let (a, b, t) = (col[i], col[i + 1], tap.1);
-        [
-            lerp(a[0], b[0], t),
-            lerp(a[1], b[1], t),
-            lerp(a[2], b[2], t),
-            lerp(a[3], b[3], t),
-        ]
-    }
-
-    /// Only the undulation of boundaries at range `r` along a line.
-    #[inline]
-    pub(crate) fn wave(&self, line: &TextureLine, r: f64) -> f32 {
-        self.at(line, r)[3]
+        let rows = &col[i..i + 2];
+        for k in channels {
+            out[k] = lerp(rows[0][k], rows[1][k], tap.1);
+        }
     }
 }
+
+/// The fat channel of the texture noise.
+pub(crate) const FAT_CHANNEL: [usize; 1] = [0];
+/// The muscle channels of the texture noise: streaks and bundles.
+pub(crate) const MUSCLE_CHANNELS: [usize; 2] = [1, 2];
 
 /// Grid coordinates of one straight line in both texture grids.
 #[derive(Debug, Clone, Copy)]
@@ -497,15 +604,9 @@ mod tests {
     fn speckle_has_unit_mean_and_exponential_like_spread() {
         let axes = Axes::from_pose(&Pose::default());
         let mut f = SpeckleField::default();
-        f.fill(
-            &axes,
-            0.3,
-            0.15,
-            1.0,
-            (-20.0, 20.0),
-            (0.0, 40.0),
-            &|_, _| true,
-        );
+        f.fill(&axes, 0.3, 0.15, 1.0, (-20.0, 20.0), (0.0, 40.0), &|_| {
+            (f64::NEG_INFINITY, f64::INFINITY)
+        });
         let (mut sum, mut sum2, mut n) = (0.0f64, 0.0f64, 0.0f64);
         let mut u = -19.0;
         while u < 19.0 {
@@ -535,8 +636,12 @@ mod tests {
         });
         let mut fa = SpeckleField::default();
         let mut fb = SpeckleField::default();
-        fa.fill(&a, 0.3, 0.15, 1.0, (-20.0, 20.0), (0.0, 40.0), &|_, _| true);
-        fb.fill(&b, 0.3, 0.15, 1.0, (-20.0, 20.0), (0.0, 40.0), &|_, _| true);
+        fa.fill(&a, 0.3, 0.15, 1.0, (-20.0, 20.0), (0.0, 40.0), &|_| {
+            (f64::NEG_INFINITY, f64::INFINITY)
+        });
+        fb.fill(&b, 0.3, 0.15, 1.0, (-20.0, 20.0), (0.0, 40.0), &|_| {
+            (f64::NEG_INFINITY, f64::INFINITY)
+        });
         // The tissue point at image u in frame a is at u − 3.7 in frame b.
         for k in 0..50 {
             let u = -10.0 + 0.31 * k as f64;

@@ -11,7 +11,7 @@
 //! and nothing has a hard edge at the slab boundary. The texture inside (fascicles, flow) is
 //! read at the point of the interval where the beam is strongest (the one nearest e = 0).
 
-use super::math::{hash3, hash_unit, seed_of, NormalCdf};
+use super::math::{hash3, hash_unit, max_f64, min_f64, seed_of, NormalCdf};
 use super::posed::{cross, dot, norm, scale, sub, unit_or, Axes, V3};
 use crate::scene::{Shape, Structure, StructureKind};
 
@@ -479,7 +479,7 @@ impl TubeSegment {
         let (clip_lo, clip_hi) = if ke.abs() > 1e-12 {
             let x = (self.t_lo - qk) / ke;
             let y = (self.t_hi - qk) / ke;
-            (x.min(y), x.max(y))
+            (min_f64(x, y), max_f64(x, y))
         } else if qk >= self.t_lo && qk <= self.t_hi {
             (f64::NEG_INFINITY, f64::INFINITY)
         } else {
@@ -500,7 +500,7 @@ impl TubeSegment {
                 let sq = disc.sqrt();
                 ((-b - sq) / a, (-b + sq) / a)
             };
-            let (e0, e1) = (e0.max(clip_lo), e1.min(clip_hi));
+            let (e0, e1) = (max_f64(e0, clip_lo), min_f64(e1, clip_hi));
             (e1 > e0).then_some((e0, e1))
         };
         let (o0, o1) = interval(outer)?;

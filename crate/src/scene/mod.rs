@@ -18,8 +18,8 @@ pub use display::{
     DEFAULT_DYNAMIC_RANGE_DB, DEFAULT_TGC_BANDS,
 };
 pub use needle::{gauge_outer_diameter_mm, Entry, Needle, NeedleSize, GAUGE_TABLE};
-pub use rehearsal::{AdvanceMode, RehearsalSettings};
 pub use probe::{Footprint, ImageCoords, Pose, Probe, ProbeFrame};
+pub use rehearsal::{AdvanceMode, RehearsalSettings};
 pub use structure::{Ellipsoid, Shape, Structure, StructureKind, Tube};
 pub use tissue::{LayerKind, TissueLayer, TissueLayers};
 

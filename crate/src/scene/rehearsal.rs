@@ -45,6 +45,13 @@ pub struct RehearsalSettings {
 
 impl Default for RehearsalSettings {
     fn default() -> Self {
-        RehearsalSettings { advance: AdvanceMode::Keys, pace_mm_s: 1.0, step_mm: 0.5, advance_mm: 15.0, target: None, time_limit_s: 180.0 }
+        RehearsalSettings {
+            advance: AdvanceMode::Keys,
+            pace_mm_s: 1.0,
+            step_mm: 0.5,
+            advance_mm: 15.0,
+            target: None,
+            time_limit_s: 180.0,
+        }
     }
 }

@@ -465,12 +465,26 @@ pub(crate) fn read_scene(v: &Value) -> Result<Scene, SceneError> {
 }
 
 fn read_rehearsal(v: &Value, structures: &[Structure]) -> Result<RehearsalSettings, SceneError> {
-    let o = Obj::open(v, "rehearsal", &["advance", "pace_mm_s", "step_mm", "advance_mm", "target", "time_limit_s"])?;
+    let o = Obj::open(
+        v,
+        "rehearsal",
+        &[
+            "advance",
+            "pace_mm_s",
+            "step_mm",
+            "advance_mm",
+            "target",
+            "time_limit_s",
+        ],
+    )?;
     let d = RehearsalSettings::default();
     let advance = if o.has("advance") {
         let names: Vec<&'static str> = AdvanceMode::ALL.iter().map(|m| m.name()).collect();
         let name = o.choice("advance", &names)?;
-        AdvanceMode::ALL.into_iter().find(|m| m.name() == name).unwrap_or_default()
+        AdvanceMode::ALL
+            .into_iter()
+            .find(|m| m.name() == name)
+            .unwrap_or_default()
     } else {
         d.advance
     };
@@ -479,12 +493,24 @@ fn read_rehearsal(v: &Value, structures: &[Structure]) -> Result<RehearsalSettin
         Some(Value::String(id)) => {
             if !structures.iter().any(|s| &s.id == id) {
                 let ids: Vec<&str> = structures.iter().map(|s| s.id.as_str()).collect();
-                let known = if ids.is_empty() { "the scene has no structures".to_owned() } else { format!("ids here: {}", ids.join(", ")) };
-                return Err(SceneError::at("rehearsal.target", format!("no structure has the id \"{id}\"; {known}")));
+                let known = if ids.is_empty() {
+                    "the scene has no structures".to_owned()
+                } else {
+                    format!("ids here: {}", ids.join(", "))
+                };
+                return Err(SceneError::at(
+                    "rehearsal.target",
+                    format!("no structure has the id \"{id}\"; {known}"),
+                ));
             }
             Some(id.clone())
         }
-        Some(other) => return Err(SceneError::at("rehearsal.target", format!("must be a structure id (text), got {}", shown(other)))),
+        Some(other) => {
+            return Err(SceneError::at(
+                "rehearsal.target",
+                format!("must be a structure id (text), got {}", shown(other)),
+            ))
+        }
     };
     Ok(RehearsalSettings {
         advance,
@@ -492,7 +518,11 @@ fn read_rehearsal(v: &Value, structures: &[Structure]) -> Result<RehearsalSettin
         step_mm: o.num_or("step_mm", limit("rehearsal.step_mm"), d.step_mm)?,
         advance_mm: o.num_or("advance_mm", limit("rehearsal.advance_mm"), d.advance_mm)?,
         target,
-        time_limit_s: o.num_or("time_limit_s", limit("rehearsal.time_limit_s"), d.time_limit_s)?,
+        time_limit_s: o.num_or(
+            "time_limit_s",
+            limit("rehearsal.time_limit_s"),
+            d.time_limit_s,
+        )?,
     })
 }
 
