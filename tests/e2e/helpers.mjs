@@ -122,7 +122,7 @@ export async function dragTimings(page, control, from, to, steps) {
         await new Promise((r) => requestAnimationFrame(() => r()));
       }
       await new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(() => r())));
-      return window.slicewise.perf.map((p) => ({ work: p.compute_ms + p.draw_ms, total: p.total_ms }));
+      return window.slicewise.perf.map((p) => ({ work: p.compute_ms + p.draw_ms, total: p.total_ms, echo: p.echo_ms ?? 0 }));
     },
     { control, from, to, steps },
   );
