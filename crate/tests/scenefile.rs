@@ -255,7 +255,7 @@ fn bad_files_get_clear_errors_naming_the_field() {
 /// optional, and a saved file keeps what was set.
 #[test]
 fn display_settings_default_and_round_trip() {
-    let plain = load_scene_str(&with("title", json!("t"))).unwrap();
+    let plain = load_scene_str(&with("display", Value::Null)).unwrap();
     assert_eq!(plain.display, DisplaySettings::default());
     let partial = load_scene_str(&with(
         "display",
