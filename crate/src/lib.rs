@@ -33,9 +33,16 @@
 //! - **Tip distances.** 3D: from the true tip to the structure surface, negative inside.
 //!   On screen: from the apparent tip to the structure's cut outline, negative inside.
 //!
+//! - **Capture.** The tilt (or slide) window is the run of poses around the capture centre in
+//!   which the tip is in the slab; reach is ±45° of tilt and ±50 mm of slide ([`capture`]).
+//! - **Rehearsal score.** Advance counts in the step that ends in the state judged; a "tip" call
+//!   stands until the tip leaves the slab ([`score_rehearsal`]).
+//!
 //! ## Layout
-//! `scene` (data), `query` (slab sections and signature), `scenefile` (v1 JSON: load, validate,
-//! save, edit by path), `cli` (the `slicewise` command), `wasm` (the browser boundary).
+//! `scene` (data), `query` (slab sections and signature), `plan` (capture solver, walking
+//! schedule, rehearsal scoring), `echo` (the simulated screen), `scenefile` (v1 JSON: load,
+//! validate, save, edit by path), `cli` (the `slicewise` command, native only), `wasm` (the
+//! browser boundary, the only file that imports wasm-bindgen).
 
 mod echo;
 mod plan;
