@@ -4,6 +4,7 @@
 import { test, before, after } from "node:test";
 import assert from "node:assert/strict";
 import { spawnSync } from "node:child_process";
+import { readFileSync } from "node:fs";
 import path from "node:path";
 import { launch, openPage, setControl, readout, nextFrames, CLI, ROOT, ARTEFACTS } from "./helpers.mjs";
 
@@ -45,7 +46,10 @@ test("display settings reach the image; a bad value names the field and keeps th
   await setControl(page, "display.grey_levels", 16);
   let shown = await onScreen(page);
   const [w, h] = shown.size.split("x").map(Number);
-  const sets = { "display.gain_db": 6, "display.tgc_db": "[0,0,0,0,0,9,0,0]", "display.grey_levels": 16 };
+  // The scene's own time-gain bands, with band 5 changed as the page did.
+  const tgc = JSON.parse(readFileSync(path.join(ROOT, "scenes-demo", file), "utf8")).display?.tgc_db ?? [0, 0, 0, 0, 0, 0, 0, 0];
+  tgc[5] = 9;
+  const sets = { "display.gain_db": 6, "display.tgc_db": JSON.stringify(tgc), "display.grey_levels": 16 };
   assert.equal(shown.print, cliFingerprint(file, w, h, sets), "the page shows the CLI's image for the same settings");
 
   await setControl(page, "display.tgc_db[2]", 45);

@@ -20,6 +20,19 @@
 //! Larger needles echo more: intensity ∝ outer diameter (cylinder backscatter grows with
 //! radius), relative to a 22G needle.
 //!
+//! **Out of plane.** A needle crossing the slab is met by the beam at its insertion angle off
+//! perpendicular (45–55° in the demos), outside the mirror lobe: its dot is the diffuse part,
+//! 0.4·cos δ/1.4 of the perpendicular amplitude (−14 dB at 45°, −16 dB at 55°), and a needle
+//! square to the beam is 34 dB above muscle, so the dot stands about 20 dB above the tissue's
+//! mean level (10 dB already beats all but e^−5.6 ≈ 0.4 % of speckle pixels; a test holds
+//! it there). It is as tall as the shaft's crossing of the slab (thickness × tan(angle), about
+//! 1 mm) and, with the bevel in the slab, carries the heel and point dots. Neither constant
+//! can brighten it much: a lobe wide enough to reach 45° (δ0 ≈ 25° adds 1 dB there) or a
+//! diffuse share above about 0.6 flattens the in-plane fall before 30° that the tests hold (a
+//! 10° needle at least 6 dB above a 30° one), and the share is set by the published 15°
+//! figure. A mirror-like dot with a reverberation tail appears when the needle crosses the
+//! slab close to square to the beam (a shallow out-of-plane needle).
+//!
 //! **Reverberation.** Sound caught in the fluid-filled lumen rings between the walls; each ring
 //! comes back one lumen crossing later, so copies sit below the shaft every
 //! ID·1540/c_fluid mm (22G: 0.413·1540/1480 ≈ 0.43 mm), each weaker by a constant factor

@@ -1,16 +1,34 @@
 //! Speckle and tissue texture, anchored to the tissue so that moving the probe moves them with
 //! it and the same scene always gives the same bytes.
 //!
-//! **Speckle** (modelling choice after the usual random-phasor picture of fully developed
-//! speckle): two smooth random fields I and Q, made of hashed lattice values with smooth
-//! interpolation, stand for the in-phase and quadrature sums of many scatterers in one
-//! resolution cell; the echo intensity factor is I² + Q², exponential with mean 1 (so the
-//! amplitude is Rayleigh-like). The lattice is aligned with the probe axes (lateral, beam,
-//! elevation) with cells one resolution cell in size — axial n·λ/2 with n = 2 cycles, lateral
-//! the two-way −6 dB width 0.886·λ·F# at F# = 2, elevation the slab thickness at the focus — and
-//! indexed by the world point's projection on those axes. Sliding the probe shifts the pattern
-//! with the tissue exactly; tilting or rotating it decorrelates the pattern, as it does on a
-//! scanner. Higher frequency → shorter λ → finer grain.
+//! **Speckle** (fully developed speckle, after Goodman, *Speckle Phenomena in Optics*, ch. 2,
+//! and Burckhardt, IEEE Trans. Sonics Ultrason. 25(1), 1978 — from memory). Many scatterers per
+//! resolution cell, each adding a phasor of random phase: the received signal is a circular
+//! complex Gaussian field, the sum of the scatterers weighted by the pulse-echo point-spread
+//! function (PSF). We build exactly that: white Gaussian scatterer strengths I and Q
+//! (independent, from integer hashing of tissue-anchored lattice points and a table of normal
+//! quantiles) on a grid aligned with the probe axes, convolved with the two-way amplitude PSF,
+//! a Gaussian whose −6 dB widths are the lateral resolution 0.886·λ·F# (F# = 2) and the axial
+//! resolution n·λ/2 (n = 2 cycles). The echo intensity factor is I² + Q², scaled to mean 1, so
+//! the amplitude √(I² + Q²) is Rayleigh-distributed (mean/std = √(π/(4 − π)) ≈ 1.91) and the
+//! dark spots are points where both fields vanish, not lines. The intensity autocorrelation is
+//! the squared field autocorrelation, a Gaussian with the PSF's own −6 dB width: grains are
+//! one lateral resolution wide and one axial resolution long, elongated across the beam (where
+//! resolution is poorer).
+//!
+//! The grid step is σ of the PSF, or a pixel where that is coarser (finer detail could not be
+//! shown); the kernel is truncated at ±3σ and normalised so that a grid node's intensity has
+//! mean 1. Between nodes the field is interpolated bilinearly and divided by the interpolated
+//! field's known variance, 1 − 2t(1 − t)(1 − ρ) per axis (ρ the correlation of neighbouring
+//! nodes), so the statistics do not depend on where a pixel falls in the grid.
+//!
+//! Anchoring: the lattice is indexed by the world point's projection on the probe axes
+//! (lateral, beam, elevation), so sliding the probe shifts the pattern with the tissue
+//! exactly; tilting or rotating it decorrelates the pattern, as it does on a scanner. Along
+//! the elevation axis the scatterers of two lattice planes one slab thickness (at the focus)
+//! apart are blended with weights cos(πt/2) and sin(πt/2), which keep the variance at 1:
+//! moving the probe in elevation changes the speckle gradually over one slab thickness. Higher
+//! frequency → shorter λ → finer grain.
 //!
 //! **Texture** (modelling choice): smooth noise in world coordinates, evaluated on a coarse
 //! grid of the image plane and interpolated. Fat: thin bright septa where a 3D noise field
@@ -19,98 +37,248 @@
 //! (taken along world y, the limb's long axis in the demo scenes) peaks — dots and short
 //! streaks in cross-section, long parallel striations in long axis.
 
-use super::math::{hash3, hash_value, smooth, Noise2, Noise3};
+use super::math::{hash3, max_f64, sin_cos, Noise2, Noise3, PI};
 use super::posed::{dot, Axes};
 
-const SEED_I: u32 = 0x51ce_0001;
-const SEED_Q: u32 = 0x51ce_0002;
-const SEED_I2: u32 = 0x51ce_0003;
-const SEED_Q2: u32 = 0x51ce_0004;
+const SEED_SCATTER: u32 = 0x51ce_0005;
 const SEED_FAT: u32 = 0x51ce_00fa;
 const SEED_MUSCLE: u32 = 0x51ce_0033;
 const SEED_BUNDLE: u32 = 0x51ce_0b0d;
 
-/// Mean of I² + Q² for unit-variance-6 triangular lattice values under smooth bilinear
-/// interpolation: 2 · (1/6) · 0.742857² (E[(1−s)² + s²] = 26/35 per axis with s = 3t² − 2t³).
-const SPECKLE_MEAN_PLANAR: f32 = 2.0 / 6.0 * (26.0 / 35.0) * (26.0 / 35.0);
+/// Bits of a hash that pick one normal quantile: 4096 equal-probability bins.
+const GAUSS_BITS: u32 = 12;
+/// Speckle grid step in σ of the PSF (finer gains nothing visible; coarser blurs the grain).
+const STEP_PER_SIGMA: f64 = 1.0;
+/// The PSF kernel is truncated at this many σ (its weight there is e^−4.5 ≈ 1 %).
+const KERNEL_SIGMAS: f64 = 3.0;
 
-/// Speckle lattice values on the image plane for one frame.
+/// The speckle field of one frame: the complex echo (I, Q) on a grid of the image plane.
 #[derive(Debug, Clone, Default)]
 pub(crate) struct SpeckleField {
-    /// Lattice cell, mm (lateral, axial).
-    cell_u: f64,
-    cell_v: f64,
-    /// Lattice coordinate of image (u, v) = (0, 0) minus the grid's first index.
+    /// Grid step, mm (lateral, axial).
+    step_u: f64,
+    step_v: f64,
+    /// Grid coordinate of image (u, v) = (0, 0).
     off_x: f64,
     off_y: f64,
     nx: usize,
     ny: usize,
-    /// Interleaved (I, Q) values, row-major by x then y: index (ix·ny + iy)·2.
+    /// Interleaved (I, Q) at each node, index (ix·ny + iy)·2, scaled so that I² + Q² has mean 1.
     values: Vec<f32>,
-    /// A second lattice of the same size, read half a cell further on in both directions;
-    /// adding the two hides the grid that a single value-noise lattice shows.
-    values_b: Vec<f32>,
-    norm: f32,
+    /// 2·(1 − ρ) for neighbouring nodes along x and along y: the variance dip of bilinear
+    /// interpolation is t(1 − t) times this.
+    dip_x: f32,
+    dip_y: f32,
+    /// Scatterers filtered along the beam, one column per lattice x (kernel margin included).
+    filtered: Vec<f32>,
+    /// Scatterers of one lattice column.
+    white: Vec<f32>,
+    /// Standard normal quantiles at the centres of 2^GAUSS_BITS equal-probability bins,
+    /// scaled to variance 1 (built once).
+    gauss: Vec<f32>,
+}
+
+/// Normalised PSF taps at multiples of `step` for a Gaussian amplitude of σ = `sigma`
+/// (Σ taps² = 1), and 2·(1 − ρ) with ρ = Σ taps[n]·taps[n + 1], the correlation of the
+/// filtered white noise at neighbouring nodes.
+fn psf_taps(sigma: f64, step: f64) -> (Vec<f32>, f32) {
+    let reach = libm::ceil(KERNEL_SIGMAS * sigma / step).max(1.0) as i32;
+    let raw: Vec<f64> = (-reach..=reach)
+        .map(|n| {
+            let x = n as f64 * step / sigma;
+            libm::exp(-0.5 * x * x)
+        })
+        .collect();
+    let norm = 1.0 / raw.iter().map(|k| k * k).sum::<f64>().sqrt();
+    let taps: Vec<f64> = raw.iter().map(|k| k * norm).collect();
+    let rho: f64 = taps.windows(2).map(|w| w[0] * w[1]).sum();
+    (
+        taps.iter().map(|&k| k as f32).collect(),
+        (2.0 * (1.0 - rho)) as f32,
+    )
+}
+
+/// Inverse of the standard normal CDF, relative error below 1.2e-9 (P. J. Acklam's rational
+/// approximation, from memory; checked against `libm::erf` in the tests). `p` in (0, 1).
+fn normal_quantile(p: f64) -> f64 {
+    const A: [f64; 6] = [
+        -3.969_683_028_665_376e1,
+        2.209_460_984_245_205e2,
+        -2.759_285_104_469_687e2,
+        1.383_577_518_672_69e2,
+        -3.066_479_806_614_716e1,
+        2.506_628_277_459_239,
+    ];
+    const B: [f64; 5] = [
+        -5.447_609_879_822_406e1,
+        1.615_858_368_580_409e2,
+        -1.556_989_798_598_866e2,
+        6.680_131_188_771_972e1,
+        -1.328_068_155_288_572e1,
+    ];
+    const C: [f64; 6] = [
+        -7.784_894_002_430_293e-3,
+        -3.223_964_580_411_365e-1,
+        -2.400_758_277_161_838,
+        -2.549_732_539_343_734,
+        4.374_664_141_464_968,
+        2.938_163_982_698_783,
+    ];
+    const D: [f64; 4] = [
+        7.784_695_709_041_462e-3,
+        3.224_671_290_700_398e-1,
+        2.445_134_137_142_996,
+        3.754_408_661_907_416,
+    ];
+    const P_LOW: f64 = 0.024_25;
+    let tail = |q: f64| {
+        (((((C[0] * q + C[1]) * q + C[2]) * q + C[3]) * q + C[4]) * q + C[5])
+            / ((((D[0] * q + D[1]) * q + D[2]) * q + D[3]) * q + 1.0)
+    };
+    if p < P_LOW {
+        tail((-2.0 * libm::log(p)).sqrt())
+    } else if p > 1.0 - P_LOW {
+        -tail((-2.0 * libm::log(1.0 - p)).sqrt())
+    } else {
+        let q = p - 0.5;
+        let r = q * q;
+        (((((A[0] * r + A[1]) * r + A[2]) * r + A[3]) * r + A[4]) * r + A[5]) * q
+            / (((((B[0] * r + B[1]) * r + B[2]) * r + B[3]) * r + B[4]) * r + 1.0)
+    }
+}
+
+/// The table of [`SpeckleField::gauss`].
+fn gaussian_table() -> Vec<f32> {
+    let n = 1usize << GAUSS_BITS;
+    let q: Vec<f64> = (0..n)
+        .map(|k| normal_quantile((k as f64 + 0.5) / n as f64))
+        .collect();
+    let var = q.iter().map(|x| x * x).sum::<f64>() / n as f64;
+    let s = 1.0 / var.sqrt();
+    q.iter().map(|x| (x * s) as f32).collect()
+}
+
+/// 1 / variance of a bilinear interpolation at offset `t` between nodes (see `dip_x`).
+#[inline(always)]
+fn inv_var(t: f32, dip: f32) -> f32 {
+    1.0 / (1.0 - t * (1.0 - t) * dip)
 }
 
 impl SpeckleField {
-    /// Fill the lattice covering image u ∈ [u_min, u_max], v ∈ [v_min, v_max] (mm) for this
-    /// frame. `view(u)` gives the depths [v_lo, v_hi] (mm) that can be read at lateral position
-    /// u; lattice points outside it are left at zero.
+    /// Fill the field covering image u ∈ [u_min, u_max], v ∈ [v_min, v_max] (mm) for this
+    /// frame: PSF σ `sigma_u` (lateral) and `sigma_v` (axial), mm, of the two-way amplitude;
+    /// grid steps no finer than `min_step` (lateral, axial), mm; elevation lattice planes
+    /// `cell_e` mm apart. `view(u)` gives the depths [v_lo, v_hi] (mm) that can be read at
+    /// lateral position u (with a margin wider than the kernel); nodes outside it are left at
+    /// zero.
     #[allow(clippy::too_many_arguments)]
     pub(crate) fn fill(
         &mut self,
         axes: &Axes,
-        cell_u: f64,
-        cell_v: f64,
+        sigma_u: f64,
+        sigma_v: f64,
+        min_step: (f64, f64),
         cell_e: f64,
         u_range: (f64, f64),
         v_range: (f64, f64),
         view: &dyn Fn(f64) -> (f64, f64),
     ) {
+        if self.gauss.is_empty() {
+            self.gauss = gaussian_table();
+        }
+        let step_u = max_f64(sigma_u * STEP_PER_SIGMA, min_step.0);
+        let step_v = max_f64(sigma_v * STEP_PER_SIGMA, min_step.1);
+        let (taps_u, dip_x) = psf_taps(sigma_u, step_u);
+        let (mut taps_v, dip_y) = psf_taps(sigma_v, step_v);
+        // I and Q share the unit mean of I² + Q².
+        for k in &mut taps_v {
+            *k *= core::f32::consts::FRAC_1_SQRT_2;
+        }
+        let (ru, rv) = (taps_u.len() / 2, taps_v.len() / 2);
         // World point · axis = origin · axis + image coordinate (orthonormal axes).
         let ca = dot(axes.origin, axes.lateral);
         let cb = dot(axes.origin, axes.beam);
         let ce = dot(axes.origin, axes.elevation);
-        let x_min = libm::floor((u_range.0 + ca) / cell_u) - 1.0;
-        let y_min = libm::floor((v_range.0 + cb) / cell_v) - 1.0;
-        let x_max = libm::floor((u_range.1 + ca) / cell_u) + 2.0;
-        let y_max = libm::floor((v_range.1 + cb) / cell_v) + 2.0;
-        self.nx = ((x_max - x_min) as usize + 1).max(2);
-        self.ny = ((y_max - y_min) as usize + 1).max(2);
-        self.cell_u = cell_u;
-        self.cell_v = cell_v;
-        self.off_x = ca / cell_u - x_min;
-        self.off_y = cb / cell_v - y_min;
+        let x_min = libm::floor((u_range.0 + ca) / step_u) - 1.0;
+        let y_min = libm::floor((v_range.0 + cb) / step_v) - 1.0;
+        let x_max = libm::floor((u_range.1 + ca) / step_u) + 2.0;
+        let y_max = libm::floor((v_range.1 + cb) / step_v) + 2.0;
+        let (nx, ny) = (
+            ((x_max - x_min) as usize + 1).max(2),
+            ((y_max - y_min) as usize + 1).max(2),
+        );
+        self.nx = nx;
+        self.ny = ny;
+        self.step_u = step_u;
+        self.step_v = step_v;
+        self.off_x = ca / step_u - x_min;
+        self.off_y = cb / step_v - y_min;
+        self.dip_x = dip_x;
+        self.dip_y = dip_y;
         let z = ce / cell_e;
         let zf = libm::floor(z);
         let iz = zf as i32;
-        let tz = smooth((z - zf) as f32);
+        let (s_el, c_el) = sin_cos(0.5 * PI * (z - zf));
+        let (s_el, c_el) = (s_el as f32, c_el as f32);
         let (ix0, iy0) = (x_min as i32, y_min as i32);
-        for (values, seeds) in [
-            (&mut self.values, (SEED_I, SEED_Q)),
-            (&mut self.values_b, (SEED_I2, SEED_Q2)),
-        ] {
-            values.resize(self.nx * self.ny * 2, 0.0);
-            for (ix, column) in (0i32..).zip(values.chunks_exact_mut(self.ny * 2)) {
-                let u = (x_min + ix as f64) * cell_u - ca;
-                // Points outside the view are never read: zeros. The rest is one run, hashed
-                // in a loop without branches.
-                let (a, b) = span_in(self.ny, view(u), |iy| (y_min + iy as f64) * cell_v - cb);
-                column[..2 * a].fill(0.0);
-                column[2 * b..].fill(0.0);
-                let x = ix0 + ix;
-                for (y, slot) in (iy0 + a as i32..).zip(column[2 * a..2 * b].chunks_exact_mut(2)) {
-                    let i0 = hash_value(hash3(x, y, iz, seeds.0));
-                    let i1 = hash_value(hash3(x, y, iz + 1, seeds.0));
-                    let q0 = hash_value(hash3(x, y, iz, seeds.1));
-                    let q1 = hash_value(hash3(x, y, iz + 1, seeds.1));
-                    slot.copy_from_slice(&[i0 + (i1 - i0) * tz, q0 + (q1 - q0) * tz]);
+        let depth_at = |iy: usize| (y_min + iy as f64) * step_v - cb;
+        let lateral_at = |ix: i32| (x_min + ix as f64) * step_u - ca;
+        let gauss = &self.gauss[..];
+        let g_mask = (1u32 << GAUSS_BITS) - 1;
+
+        // Pass 1: scatterers of every lattice column that the lateral kernel reaches, filtered
+        // along the beam.
+        let row = ny * 2;
+        self.filtered.resize((nx + 2 * ru) * row, 0.0);
+        for (k, column) in self.filtered.chunks_exact_mut(row).enumerate() {
+            let ix = k as i32 - ru as i32;
+            let (a, b) = span_in(ny, view(lateral_at(ix)), depth_at);
+            column[..2 * a].fill(0.0);
+            column[2 * b..].fill(0.0);
+            if a >= b {
+                continue;
+            }
+            // Scatterer rows a − rv ..= b − 1 + rv, as white index 0..(b − a + 2·rv).
+            let n_white = b - a + 2 * rv;
+            self.white.resize(2 * n_white, 0.0);
+            let x = ix0 + ix;
+            let y_first = iy0 + a as i32 - rv as i32;
+            for (y, slot) in (y_first..).zip(self.white.chunks_exact_mut(2)) {
+                let h = hash3(x, y, iz, SEED_SCATTER);
+                let mut i = gauss[(h >> 20) as usize];
+                let mut q = gauss[((h >> 8) & g_mask) as usize];
+                if s_el != 0.0 {
+                    let h2 = hash3(x, y, iz + 1, SEED_SCATTER);
+                    i = c_el * i + s_el * gauss[(h2 >> 20) as usize];
+                    q = c_el * q + s_el * gauss[((h2 >> 8) & g_mask) as usize];
+                }
+                slot.copy_from_slice(&[i, q]);
+            }
+            let out = &mut column[2 * a..2 * b];
+            out.fill(0.0);
+            for (n, &tap) in taps_v.iter().enumerate() {
+                let src = &self.white[2 * n..2 * n + out.len()];
+                for (o, s) in out.iter_mut().zip(src) {
+                    *o += tap * s;
                 }
             }
         }
-        let ez = (1.0 - tz) * (1.0 - tz) + tz * tz;
-        self.norm = 1.0 / (SPECKLE_MEAN_PLANAR * ez);
+        // Pass 2: across the beam.
+        self.values.resize(nx * row, 0.0);
+        for (ix, column) in self.values.chunks_exact_mut(row).enumerate() {
+            let (a, b) = span_in(ny, view(lateral_at(ix as i32)), depth_at);
+            column[..2 * a].fill(0.0);
+            column[2 * b..].fill(0.0);
+            let out = &mut column[2 * a..2 * b];
+            out.fill(0.0);
+            for (n, &tap) in taps_u.iter().enumerate() {
+                let base = (ix + n) * row;
+                let src = &self.filtered[base + 2 * a..base + 2 * b];
+                for (o, s) in out.iter_mut().zip(src) {
+                    *o += tap * s;
+                }
+            }
+        }
     }
 
     /// Highest lattice x coordinate read (just inside the last cell).
@@ -125,121 +293,92 @@ impl SpeckleField {
         (self.ny - 1) as f32 - 0.001
     }
 
-    /// Lattice x coordinate (grid units) of lateral position u, mm.
+    /// Grid x coordinate of lateral position u, mm.
     #[inline]
     pub(crate) fn gx(&self, u: f64) -> f32 {
-        (u / self.cell_u + self.off_x) as f32
+        (u / self.step_u + self.off_x) as f32
     }
 
-    /// Lattice y coordinate (grid units) of depth v, mm.
+    /// Grid y coordinate of depth v, mm.
     #[inline]
     pub(crate) fn gy(&self, v: f64) -> f32 {
-        (v / self.cell_v + self.off_y) as f32
+        (v / self.step_v + self.off_y) as f32
     }
 
-    /// Speckle intensity factor (mean 1) at lattice coordinates (gx, gy) (the tests read
-    /// single points; the renderer reads whole lines).
+    /// Speckle intensity factor (mean 1) at grid coordinates (gx, gy) (the tests read single
+    /// points; the renderer reads whole lines).
     #[cfg(test)]
     pub(crate) fn at(&self, gx: f32, gy: f32) -> f32 {
-        let last = (self.last_x(), self.last_y());
+        let (i, q, scale) = self.field_at(gx, gy, (self.last_x(), self.last_y()));
+        (i * i + q * q) * scale
+    }
+
+    /// (I, Q) and the variance correction at grid coordinates (gx, gy).
+    #[inline(always)]
+    fn field_at(&self, gx: f32, gy: f32, last: (f32, f32)) -> (f32, f32, f32) {
+        let (ix, tx) = cell_of(gx, last.0);
+        let (iy, ty) = cell_of(gy, last.1);
         let row = self.ny * 2;
-        let (ia, qa) = bilinear_iq(&self.values, row, gx, gy, last);
-        let (ib, qb) = bilinear_iq(&self.values_b, row, gx + 0.5, gy + 0.5, last);
-        let (i, q) = (ia + ib, qa + qb);
-        // Each sum has twice the variance of one lattice.
-        (i * i + q * q) * (0.5 * self.norm)
+        let b = ix * row + iy * 2;
+        // One window over this column's pair of nodes and the next column's: one bounds check.
+        let w = &self.values[b..b + row + 4];
+        let (near, far) = (&w[..4], &w[row..]);
+        let i = lerp(lerp(near[0], near[2], ty), lerp(far[0], far[2], ty), tx);
+        let q = lerp(lerp(near[1], near[3], ty), lerp(far[1], far[3], ty), tx);
+        (i, q, inv_var(tx, self.dip_x) * inv_var(ty, self.dip_y))
     }
 
     /// Speckle intensity factor at every sample of an oblique line from image point `o` (mm)
-    /// along unit direction `b`, sample i at range (i + ½)·`dr` mm, one per slot of `out`:
-    /// each sample's two lattice lookups in one tight loop.
+    /// along unit direction `b`, sample i at range (i + ½)·`dr` mm, one per slot of `out`.
     pub(crate) fn along_line(&self, o: [f64; 2], b: [f64; 2], dr: f64, out: &mut [f32]) {
         let last = (self.last_x(), self.last_y());
-        let row = self.ny * 2;
-        let scale = 0.5 * self.norm;
-        let (va, vb) = (&self.values[..], &self.values_b[..]);
         for (i, slot) in out.iter_mut().enumerate() {
             let r = (i as f64 + 0.5) * dr;
-            let gx = ((o[0] + b[0] * r) / self.cell_u + self.off_x) as f32;
-            let gy = ((o[1] + b[1] * r) / self.cell_v + self.off_y) as f32;
-            let (ia, qa) = bilinear_iq(va, row, gx, gy, last);
-            let (ib, qb) = bilinear_iq(vb, row, gx + 0.5, gy + 0.5, last);
-            let (si, sq) = (ia + ib, qa + qb);
+            let gx = ((o[0] + b[0] * r) / self.step_u + self.off_x) as f32;
+            let gy = ((o[1] + b[1] * r) / self.step_v + self.off_y) as f32;
+            let (si, sq, scale) = self.field_at(gx, gy, last);
             *slot = (si * si + sq * sq) * scale;
         }
     }
 
-    /// Interpolate both lattices across x at `gx` for every y: a column that a straight line
-    /// of constant lateral position reads with [`SpeckleField::at_column`].
-    pub(crate) fn column(&self, gx: f32, out: &mut Vec<[f32; 4]>) {
+    /// Interpolate the field across x at `gx` for every y: a column that a straight line of
+    /// constant lateral position reads with [`SpeckleField::at_column`]. Returns the line's
+    /// variance correction across x.
+    pub(crate) fn column(&self, gx: f32, out: &mut Vec<[f32; 2]>) -> f32 {
         let n = self.ny * 2;
-        let last = self.last_x();
-        let ((ia, ta), (ib, tb)) = (cell_of(gx, last), cell_of(gx + 0.5, last));
-        let (ta, tb) = (smooth(ta), smooth(tb));
-        let (a0, a1) = (
-            &self.values[ia * n..(ia + 1) * n],
-            &self.values[(ia + 1) * n..(ia + 2) * n],
+        let (ix, tx) = cell_of(gx, self.last_x());
+        let (c0, c1) = (
+            &self.values[ix * n..(ix + 1) * n],
+            &self.values[(ix + 1) * n..(ix + 2) * n],
         );
-        let (b0, b1) = (
-            &self.values_b[ib * n..(ib + 1) * n],
-            &self.values_b[(ib + 1) * n..(ib + 2) * n],
-        );
-        out.resize(self.ny, [0.0; 4]);
-        for ((((slot, p), q), r), s) in out
+        out.resize(self.ny, [0.0; 2]);
+        for ((slot, p), q) in out
             .iter_mut()
-            .zip(a0.chunks_exact(2))
-            .zip(a1.chunks_exact(2))
-            .zip(b0.chunks_exact(2))
-            .zip(b1.chunks_exact(2))
+            .zip(c0.chunks_exact(2))
+            .zip(c1.chunks_exact(2))
         {
-            *slot = [
-                lerp(p[0], q[0], ta),
-                lerp(p[1], q[1], ta),
-                lerp(r[0], s[0], tb),
-                lerp(r[1], s[1], tb),
-            ];
+            *slot = [lerp(p[0], q[0], tx), lerp(p[1], q[1], tx)];
         }
+        inv_var(tx, self.dip_x)
     }
 
-    /// Where a depth (lattice y coordinate) reads a column: (row, weight) for each lattice.
+    /// Where a depth (grid y coordinate) reads a column: row, weight and variance correction.
     #[inline]
-    pub(crate) fn column_tap(&self, gy: f32) -> (u32, f32, u32, f32) {
-        let last = self.last_y();
-        let tap = |gy: f32| {
-            let (iy, t) = cell_of(gy, last);
-            (iy as u32, smooth(t))
-        };
-        let (a, ta) = tap(gy);
-        let (b, tb) = tap(gy + 0.5);
-        (a, ta, b, tb)
+    pub(crate) fn column_tap(&self, gy: f32) -> (u32, f32, f32) {
+        let (iy, t) = cell_of(gy, self.last_y());
+        (iy as u32, t, inv_var(t, self.dip_y))
     }
 
-    /// Speckle intensity factor from a column and a tap.
+    /// Speckle intensity factor from a column, a tap and the column's correction across x.
     #[inline]
-    pub(crate) fn at_column(&self, col: &[[f32; 4]], tap: (u32, f32, u32, f32)) -> f32 {
-        let (a, ta, b, tb) = (tap.0 as usize, tap.1, tap.2 as usize, tap.3);
-        // Two-row windows: one bounds check each.
-        let (ca, cb) = (&col[a..a + 2], &col[b..b + 2]);
-        let i = lerp(ca[0][0], ca[1][0], ta) + lerp(cb[0][2], cb[1][2], tb);
-        let q = lerp(ca[0][1], ca[1][1], ta) + lerp(cb[0][3], cb[1][3], tb);
-        (i * i + q * q) * (0.5 * self.norm)
+    pub(crate) fn at_column(col: &[[f32; 2]], tap: (u32, f32, f32), scale_x: f32) -> f32 {
+        let a = tap.0 as usize;
+        // A two-row window: one bounds check.
+        let rows = &col[a..a + 2];
+        let i = lerp(rows[0][0], rows[1][0], tap.1);
+        let q = lerp(rows[0][1], rows[1][1], tap.1);
+        (i * i + q * q) * (tap.2 * scale_x)
     }
-}
-
-/// Smooth bilinear (I, Q) of an interleaved lattice with `row` values per x column, at lattice
-/// coordinates (gx, gy) held within the lattice (last cells `last`).
-#[inline(always)]
-fn bilinear_iq(v: &[f32], row: usize, gx: f32, gy: f32, last: (f32, f32)) -> (f32, f32) {
-    let (ix, tx) = cell_of(gx, last.0);
-    let (iy, ty) = cell_of(gy, last.1);
-    let (tx, ty) = (smooth(tx), smooth(ty));
-    let b = ix * row + iy * 2;
-    // One window over this column's pair of points and the next column's: one bounds check.
-    let w = &v[b..b + row + 4];
-    let (near, far) = (&w[..4], &w[row..]);
-    let i = lerp(lerp(near[0], near[2], ty), lerp(far[0], far[2], ty), tx);
-    let q = lerp(lerp(near[1], near[3], ty), lerp(far[1], far[3], ty), tx);
-    (i, q)
 }
 
 /// The run a..b of the `n` points of a grid column whose depths `v_at(i)` (increasing with i)
@@ -600,14 +739,47 @@ mod tests {
     use super::*;
     use crate::scene::Pose;
 
-    #[test]
-    fn speckle_has_unit_mean_and_exponential_like_spread() {
+    fn field(sigma_u: f64, sigma_v: f64) -> SpeckleField {
         let axes = Axes::from_pose(&Pose::default());
         let mut f = SpeckleField::default();
-        f.fill(&axes, 0.3, 0.15, 1.0, (-20.0, 20.0), (0.0, 40.0), &|_| {
-            (f64::NEG_INFINITY, f64::INFINITY)
-        });
-        let (mut sum, mut sum2, mut n) = (0.0f64, 0.0f64, 0.0f64);
+        f.fill(
+            &axes,
+            sigma_u,
+            sigma_v,
+            (0.0, 0.0),
+            1.0,
+            (-20.0, 20.0),
+            (0.0, 40.0),
+            &|_| (f64::NEG_INFINITY, f64::INFINITY),
+        );
+        f
+    }
+
+    /// The table of normal quantiles: each entry's Φ (through `libm::erf`) is the centre of its
+    /// bin, to 1e-6 relative.
+    #[test]
+    fn gaussian_table_holds_normal_quantiles() {
+        let t = gaussian_table();
+        let n = t.len() as f64;
+        let var = t.iter().map(|&x| (x as f64) * (x as f64)).sum::<f64>() / n;
+        assert!((var - 1.0).abs() < 1e-6, "variance {var}");
+        for (k, &x) in t.iter().enumerate() {
+            let p = (k as f64 + 0.5) / n;
+            let q = normal_quantile(p);
+            let phi = 0.5 * (1.0 + libm::erf(q / core::f64::consts::SQRT_2));
+            assert!((phi - p).abs() < 1e-6 * p.min(1.0 - p), "{p}: {phi}");
+            assert!((x as f64 - q).abs() < 0.01 * q.abs() + 1e-6);
+        }
+    }
+
+    /// Fully developed speckle (Goodman, Speckle Phenomena in Optics, ch. 2, from memory): the
+    /// intensity is exponential — mean 1 and standard deviation 1 — and the amplitude Rayleigh,
+    /// mean/std = √(π/(4 − π)) = 1.913, anywhere in the grid (at nodes and between them). About
+    /// 15 000 independent cells are read: standard errors near 0.01.
+    #[test]
+    fn speckle_intensity_is_exponential_and_amplitude_rayleigh() {
+        let f = field(0.12, 0.065);
+        let (mut sum, mut sum2, mut a_sum, mut n) = (0.0, 0.0, 0.0, 0.0);
         let mut u = -19.0;
         while u < 19.0 {
             let mut v = 1.0;
@@ -615,6 +787,7 @@ mod tests {
                 let s = f.at(f.gx(u), f.gy(v)) as f64;
                 sum += s;
                 sum2 += s * s;
+                a_sum += s.sqrt();
                 n += 1.0;
                 v += 0.037;
             }
@@ -622,9 +795,53 @@ mod tests {
         }
         let mean = sum / n;
         let sd = (sum2 / n - mean * mean).sqrt();
-        assert!((mean - 1.0).abs() < 0.05, "mean {mean}");
-        // Fully developed speckle has intensity contrast sd/mean = 1; smoothing lowers it a bit.
-        assert!(sd / mean > 0.6 && sd / mean < 1.3, "contrast {}", sd / mean);
+        assert!((mean - 1.0).abs() < 0.04, "mean {mean}");
+        assert!((sd / mean - 1.0).abs() < 0.05, "contrast {}", sd / mean);
+        // E[A²] = E[I] = mean.
+        let a_mean = a_sum / n;
+        let snr = a_mean / (mean - a_mean * a_mean).sqrt();
+        let rayleigh = (core::f64::consts::PI / (4.0 - core::f64::consts::PI)).sqrt();
+        assert!((snr - rayleigh).abs() < 0.03, "amplitude mean/std {snr}");
+    }
+
+    /// Grain size: the intensity autocovariance is the squared field autocorrelation, a
+    /// Gaussian whose full width at half maximum is the PSF's −6 dB width (2.355 σ): one
+    /// resolution cell across and along the beam (Burckhardt 1978; Wagner et al. 1983; from
+    /// memory). At a lag of half that width it is ½; the grid's interpolation may widen it a
+    /// little (±0.12 allowed).
+    #[test]
+    fn speckle_grain_is_one_resolution_cell() {
+        let (sigma_u, sigma_v) = (0.12, 0.065);
+        let f = field(sigma_u, sigma_v);
+        let autocov = |du: f64, dv: f64| {
+            let (mut s0, mut s1, mut s2, mut s01, mut n) = (0.0, 0.0, 0.0, 0.0, 0.0);
+            let mut u = -18.0;
+            while u < 18.0 {
+                let mut v = 2.0;
+                while v < 38.0 {
+                    let a = f.at(f.gx(u), f.gy(v)) as f64;
+                    let b = f.at(f.gx(u + du), f.gy(v + dv)) as f64;
+                    s0 += a;
+                    s1 += b;
+                    s2 += a * a;
+                    s01 += a * b;
+                    n += 1.0;
+                    v += 0.041;
+                }
+                u += 0.067;
+            }
+            let (ma, mb) = (s0 / n, s1 / n);
+            (s01 / n - ma * mb) / (s2 / n - ma * ma)
+        };
+        let fwhm = 2.354_820_045;
+        let lateral = autocov(0.5 * fwhm * sigma_u, 0.0);
+        let axial = autocov(0.0, 0.5 * fwhm * sigma_v);
+        println!("autocovariance at half a cell: lateral {lateral:.3}, axial {axial:.3}");
+        assert!((lateral - 0.5).abs() < 0.12, "lateral {lateral}");
+        assert!((axial - 0.5).abs() < 0.12, "axial {axial}");
+        // Two cells apart: nearly independent (e^−8 ≈ 0.0003 in theory).
+        let far = autocov(2.0 * fwhm * sigma_u, 0.0);
+        assert!(far.abs() < 0.05, "two cells apart {far}");
     }
 
     #[test]
@@ -636,12 +853,26 @@ mod tests {
         });
         let mut fa = SpeckleField::default();
         let mut fb = SpeckleField::default();
-        fa.fill(&a, 0.3, 0.15, 1.0, (-20.0, 20.0), (0.0, 40.0), &|_| {
-            (f64::NEG_INFINITY, f64::INFINITY)
-        });
-        fb.fill(&b, 0.3, 0.15, 1.0, (-20.0, 20.0), (0.0, 40.0), &|_| {
-            (f64::NEG_INFINITY, f64::INFINITY)
-        });
+        fa.fill(
+            &a,
+            0.3,
+            0.15,
+            (0.0, 0.0),
+            1.0,
+            (-20.0, 20.0),
+            (0.0, 40.0),
+            &|_| (f64::NEG_INFINITY, f64::INFINITY),
+        );
+        fb.fill(
+            &b,
+            0.3,
+            0.15,
+            (0.0, 0.0),
+            1.0,
+            (-20.0, 20.0),
+            (0.0, 40.0),
+            &|_| (f64::NEG_INFINITY, f64::INFINITY),
+        );
         // The tissue point at image u in frame a is at u − 3.7 in frame b.
         for k in 0..50 {
             let u = -10.0 + 0.31 * k as f64;
