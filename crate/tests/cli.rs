@@ -1,19 +1,8 @@
 //! The `slicewise` command line: JSON for every demo scene, one-line errors, no panics.
 
-use std::process::Command;
+mod common;
 
-fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_slicewise"))
-        .args(args)
-        .current_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/.."))
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
+use common::run_cli as run;
 
 fn demo_paths() -> Vec<String> {
     let mut v: Vec<String> =

@@ -1,19 +1,8 @@
 //! `slicewise render`: a PNG of the screen only, the meta as JSON, one-line errors.
 
-use std::process::Command;
+mod common;
 
-fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_slicewise"))
-        .args(args)
-        .current_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/.."))
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
+use common::run_cli as run;
 
 #[test]
 fn render_writes_a_png_and_its_meta() {

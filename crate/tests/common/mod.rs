@@ -220,6 +220,20 @@ pub fn in_intervals(intervals: &[[f64; 2]], s: f64) -> bool {
     intervals.iter().any(|iv| s >= iv[0] && s <= iv[1])
 }
 
+/// Run the `slicewise` binary from the repository root: (exit code, stdout, stderr).
+pub fn run_cli(args: &[&str]) -> (i32, String, String) {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_slicewise"))
+        .args(args)
+        .current_dir(concat!(env!("CARGO_MANIFEST_DIR"), "/.."))
+        .output()
+        .unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
 pub fn demo_scenes() -> Vec<(String, Scene)> {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../scenes-demo");
     let mut out = Vec::new();
